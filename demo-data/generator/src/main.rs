@@ -1,0 +1,3 @@
+//! Generator of tidetally's invented demo coastline (under construction).
+
+fn main() {}

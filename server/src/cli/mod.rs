@@ -1,0 +1,161 @@
+//! The command line: one clap definition, one dispatch. Each command lives in its own module
+//! and prints JSON to stdout unless it writes a file.
+
+use std::path::PathBuf;
+
+use clap::{Args, Parser, Subcommand};
+
+mod counts;
+mod glm;
+mod score;
+mod serve;
+mod tide;
+
+/// tidetally: seasonal outlooks of minor coastal flood days at tide gauges.
+#[derive(Debug, Parser)]
+#[command(name = "tidetally", version, about)]
+pub struct Cli {
+    /// The command to run.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Serve the JSON API and the web page.
+    Serve(ServeArgs),
+    /// Count flood days per season for a gauge.
+    Counts(GaugeArgs),
+    /// Fit a Poisson or negative-binomial GLM to any CSV table.
+    Glm(GlmArgs),
+    /// Tidal harmonic analysis and prediction.
+    #[command(subcommand)]
+    Tide(TideCommand),
+    /// Tidal datums (MHHW, MHW, MSL, MTL, MLW, MLLW, GT) from a water-level record.
+    Datums(DatumsArgs),
+    /// Verification scores of given forecasts.
+    Score(ScoreArgs),
+}
+
+/// Arguments of `serve`.
+#[derive(Debug, Args)]
+pub struct ServeArgs {
+    /// Folder holding gauge TOML files to load when the store is empty (default: the demo
+    /// coastline).
+    #[arg(long)]
+    pub data: Option<PathBuf>,
+    /// SQLite store file (default: tidetally.db in the working directory).
+    #[arg(long)]
+    pub db: Option<PathBuf>,
+    /// Address to listen on (default 127.0.0.1:8080).
+    #[arg(long)]
+    pub addr: Option<String>,
+}
+
+/// Arguments of the per-gauge pipeline commands.
+#[derive(Debug, Args)]
+pub struct GaugeArgs {
+    /// The gauge's TOML file; it names its data files relative to itself.
+    #[arg(long)]
+    pub gauge: PathBuf,
+    /// Write the season table as CSV instead of JSON.
+    #[arg(long)]
+    pub csv: bool,
+}
+
+/// Arguments of `glm`.
+#[derive(Debug, Args)]
+pub struct GlmArgs {
+    /// The CSV table (header row required).
+    #[arg(long)]
+    pub csv: PathBuf,
+    /// The response column (non-negative counts).
+    #[arg(long)]
+    pub response: String,
+    /// Predictor columns, comma separated.
+    #[arg(long, value_delimiter = ',')]
+    pub predictors: Vec<String>,
+    /// Offset column, added to the linear predictor as is.
+    #[arg(long)]
+    pub offset: Option<String>,
+    /// Add ln(offset column) instead of the column itself.
+    #[arg(long, requires = "offset")]
+    pub log_offset: bool,
+    /// Count family: poisson, negbin or auto.
+    #[arg(long)]
+    pub family: String,
+}
+
+/// The `tide` subcommands.
+#[derive(Debug, Subcommand)]
+pub enum TideCommand {
+    /// Harmonic analysis of a water-level record.
+    Analyze(TideAnalyzeArgs),
+    /// Tide prediction from constituents.
+    Predict(TidePredictArgs),
+}
+
+/// Arguments of `tide analyze`.
+#[derive(Debug, Args)]
+pub struct TideAnalyzeArgs {
+    /// Water-level CSV (`time,level[,flag]`, plain or gzip).
+    #[arg(long)]
+    pub csv: PathBuf,
+    /// Latitude of the gauge in degrees north (for the nodal corrections' reporting).
+    #[arg(long)]
+    pub latitude: Option<f64>,
+}
+
+/// Arguments of `tide predict`.
+#[derive(Debug, Args)]
+pub struct TidePredictArgs {
+    /// Constituents as written by `tide analyze`.
+    #[arg(long)]
+    pub constituents: PathBuf,
+    /// First time to predict (ISO 8601).
+    #[arg(long)]
+    pub start: String,
+    /// Last time to predict (ISO 8601).
+    #[arg(long)]
+    pub end: String,
+    /// Step between predictions in minutes.
+    #[arg(long, default_value_t = 60)]
+    pub step_minutes: u32,
+}
+
+/// Arguments of `datums`.
+#[derive(Debug, Args)]
+pub struct DatumsArgs {
+    /// Water-level CSV (`time,level[,flag]`, plain or gzip).
+    #[arg(long)]
+    pub csv: PathBuf,
+}
+
+/// Arguments of `score`.
+#[derive(Debug, Args)]
+pub struct ScoreArgs {
+    /// JSON file of cases: `{"cases": [{"pmf": [...], "observed": n}], ...}`.
+    #[arg(long)]
+    pub input: PathBuf,
+}
+
+/// Runs one parsed command.
+pub fn run(cli: Cli) -> anyhow::Result<()> {
+    match cli.command {
+        Command::Serve(args) => serve::run(args),
+        Command::Counts(args) => counts::run(args),
+        Command::Glm(args) => glm::run(args),
+        Command::Tide(TideCommand::Analyze(args)) => tide::analyze(args),
+        Command::Tide(TideCommand::Predict(args)) => tide::predict(args),
+        Command::Datums(args) => tide::datums(args),
+        Command::Score(args) => score::run(args),
+    }
+}
+
+/// Prints a value as pretty JSON on stdout.
+pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
+    let text = serde_json::to_string_pretty(value)?;
+    println!("{text}");
+    Ok(())
+}

@@ -1,0 +1,4 @@
+//! tidetally's edge: the HTTP service, the store and the command-line tool. Depends on
+//! `tidetally-model`; the model never depends on this crate.
+
+pub mod cli;

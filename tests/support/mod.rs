@@ -1,0 +1,1 @@
+//! Shared helpers for tidetally's end-to-end and reference-check tests.
