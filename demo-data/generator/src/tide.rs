@@ -93,7 +93,8 @@ pub const CONSTITUENTS: [Constituent; 12] = [
     constituent("Q1", [1, -3, 1, 1, 0], 90.0, Nodal::O1),
     constituent("M4", [4, -4, 4, 0, 0], 0.0, Nodal::M2Squared),
     constituent("MS4", [4, -2, 2, 0, 0], 0.0, Nodal::M2),
-    constituent("Sa", [0, 0, 1, 0, 0], 0.0, Nodal::None),
+    // Sa as h - p' (Doodson number 056.554, as in the IHO list and t_tide); Schureman uses h.
+    constituent("Sa", [0, 0, 1, 0, -1], 0.0, Nodal::None),
     constituent("Ssa", [0, 0, 2, 0, 0], 0.0, Nodal::None),
 ];
 
@@ -216,19 +217,41 @@ pub struct TideModel {
 impl TideModel {
     /// Tide height in metres about mean sea level at a UTC time (minutes since 1970).
     pub fn height(&self, minutes_utc: i64) -> f64 {
-        let lon = mean_longitudes(julian_centuries(minutes_utc));
-        let angles = orbit_angles(lon.n);
-        let t_deg = 180.0 + 0.25 * minutes_utc.rem_euclid(MINUTES_PER_DAY) as f64;
-        CONSTITUENTS
+        arguments(minutes_utc)
             .iter()
             .zip(&self.harmonics)
-            .map(|(c, h)| {
-                let (f, u) = nodal_factor(c.nodal, &angles);
-                let phase = (c.argument(t_deg, &lon) + u - h.phase_deg).rem_euclid(360.0);
-                f * h.amplitude_m * phase.to_radians().cos()
+            .map(|(a, h)| {
+                let phase = (a.v_deg + a.u_deg - h.phase_deg).rem_euclid(360.0);
+                a.f * h.amplitude_m * phase.to_radians().cos()
             })
             .sum()
     }
+}
+
+/// One constituent's nodal factor, nodal angle and equilibrium argument at an instant.
+#[derive(Debug, Clone, Copy)]
+pub struct Argument {
+    /// Nodal factor f.
+    pub f: f64,
+    /// Nodal angle u, degrees.
+    pub u_deg: f64,
+    /// Equilibrium argument V, degrees in [0, 360).
+    pub v_deg: f64,
+}
+
+/// f, u and V of every entry of [`CONSTITUENTS`] at a UTC time (minutes since 1970).
+pub fn arguments(minutes_utc: i64) -> [Argument; 12] {
+    let lon = mean_longitudes(julian_centuries(minutes_utc));
+    let angles = orbit_angles(lon.n);
+    let t_deg = 180.0 + 0.25 * minutes_utc.rem_euclid(MINUTES_PER_DAY) as f64;
+    CONSTITUENTS.map(|c| {
+        let (f, u_deg) = nodal_factor(c.nodal, &angles);
+        Argument {
+            f,
+            u_deg,
+            v_deg: c.argument(t_deg, &lon).rem_euclid(360.0),
+        }
+    })
 }
 
 /// Nodal factor f of M2 at a UTC time (minutes since 1970); recorded as a tidal driver.
@@ -242,7 +265,7 @@ mod tests {
     use super::*;
 
     /// Constituent speeds in degrees per hour from Schureman (1958) Table 2 / the IHO
-    /// constituent list, to 1e-6 deg/h (recalled from memory).
+    /// constituent list, to 1e-6 deg/h (recalled from memory; Sa as h - p', 0.0410667).
     #[test]
     fn speeds_match_published_values() {
         let published = [
@@ -256,7 +279,7 @@ mod tests {
             ("Q1", 13.398_660_9),
             ("M4", 57.968_208_4),
             ("MS4", 58.984_104_2),
-            ("Sa", 0.041_068_6),
+            ("Sa", 0.041_066_7),
             ("Ssa", 0.082_137_3),
         ];
         for (c, (name, speed)) in CONSTITUENTS.iter().zip(published) {
