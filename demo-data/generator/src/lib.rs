@@ -4,7 +4,7 @@
 //! files.
 //!
 //! Modules in data-flow order: [`seed`] (random streams), [`calendar`] (days, months,
-//! seasons), [`tide`] (astronomical tide), [`drivers`] (ENSO, MJO, wind), [`gauges`] (the
+//! seasons), [`tide`] (astronomical tide), [`drivers`] (ENSO, MJO, wind), [`mod@gauges`] (the
 //! four gauges), [`levels`] (water levels, flood days and their expectation), [`seasons`]
 //! (per-season truth), [`output`] (file formats), and [`generate`] tying them together.
 

@@ -45,7 +45,9 @@ fn season_label(date: NaiveDate) -> String {
 /// Per season: (observed days, flood days), recounted from the files.
 fn recount(toml_path: &Path) -> BTreeMap<String, (u32, u32)> {
     let toml = toml_values(&fs::read_to_string(toml_path).expect("gauge TOML is committed"));
-    let threshold: f64 = toml["flood_threshold_m"].parse().expect("threshold is a number");
+    let threshold: f64 = toml["flood_threshold_m"]
+        .parse()
+        .expect("threshold is a number");
     let offset = &toml["utc_offset"];
     let sign = if offset.starts_with('-') { -1 } else { 1 };
     let offset_minutes = sign
@@ -56,7 +58,9 @@ fn recount(toml_path: &Path) -> BTreeMap<String, (u32, u32)> {
         "ft" => 0.3048, // the international foot (exact by definition)
         other => panic!("unexpected units {other}"),
     };
-    let sentinel: Option<f64> = toml.get("missing_sentinel").map(|s| s.parse().expect("number"));
+    let sentinel: Option<f64> = toml
+        .get("missing_sentinel")
+        .map(|s| s.parse().expect("number"));
     let file = toml_path.parent().expect("a folder").join(&toml["file"]);
     let mut text = String::new();
     GzDecoder::new(fs::File::open(file).expect("levels file is committed"))
@@ -68,9 +72,13 @@ fn recount(toml_path: &Path) -> BTreeMap<String, (u32, u32)> {
     let mut times: Vec<i64> = Vec::new();
     for line in text.lines().skip(1) {
         let (time, value) = line.split_once(',').expect("two columns");
-        let t = DateTime::parse_from_rfc3339(time).expect("RFC 3339 time").timestamp();
+        let t = DateTime::parse_from_rfc3339(time)
+            .expect("RFC 3339 time")
+            .timestamp();
         times.push(t);
-        let local = (DateTime::from_timestamp(t, 0).expect("in range").naive_utc()
+        let local = (DateTime::from_timestamp(t, 0)
+            .expect("in range")
+            .naive_utc()
             + Duration::minutes(offset_minutes))
         .date();
         let entry = days.entry(local).or_insert((0, f64::NEG_INFINITY));
@@ -109,7 +117,12 @@ fn truth_rows() -> BTreeMap<(String, String), (u32, u32, f64)> {
         .expect("truth table is committed");
     let mut lines = text.lines();
     let header: Vec<&str> = lines.next().expect("a header").split(',').collect();
-    let col = |name: &str| header.iter().position(|h| *h == name).expect("column present");
+    let col = |name: &str| {
+        header
+            .iter()
+            .position(|h| *h == name)
+            .expect("column present")
+    };
     let (g, s, o, f, e) = (
         col("gauge"),
         col("season"),
@@ -136,7 +149,11 @@ fn gauge_ids() -> Vec<String> {
     let mut ids: Vec<String> = fs::read_dir(demo_dir().join("gauges"))
         .expect("gauges folder")
         .filter_map(|e| {
-            let name = e.expect("dir entry").file_name().into_string().expect("utf-8 name");
+            let name = e
+                .expect("dir entry")
+                .file_name()
+                .into_string()
+                .expect("utf-8 name");
             name.strip_suffix(".toml").map(str::to_owned)
         })
         .collect();
@@ -175,7 +192,9 @@ fn written_counts_agree_with_expected_counts_overall() {
         let (actual, expected) = truth
             .iter()
             .filter(|((g, _), _)| *g == id)
-            .fold((0.0, 0.0), |(a, e), (_, (_, f, x))| (a + f64::from(*f), e + x));
+            .fold((0.0, 0.0), |(a, e), (_, (_, f, x))| {
+                (a + f64::from(*f), e + x)
+            });
         let tolerance = 4.0 * (3.0 * expected).sqrt();
         assert!(expected > 50.0, "{id}: expected total {expected}");
         assert!(

@@ -19,7 +19,9 @@ fn parse_manifest(text: &str) -> BTreeMap<String, String> {
     text.lines()
         .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
         .map(|l| {
-            let (hash, path) = l.split_once("  ").expect("manifest lines are `<hash>  <path>`");
+            let (hash, path) = l
+                .split_once("  ")
+                .expect("manifest lines are `<hash>  <path>`");
             (path.to_owned(), hash.to_owned())
         })
         .collect()
@@ -36,7 +38,11 @@ fn regenerating_reproduces_the_committed_files_byte_for_byte() {
     let committed = parse_manifest(&committed_text);
     let fresh_text =
         fs::read_to_string(out.join("MANIFEST.fnv1a64")).expect("the generator writes a manifest");
-    assert_eq!(parse_manifest(&fresh_text), committed, "regenerated manifest differs");
+    assert_eq!(
+        parse_manifest(&fresh_text),
+        committed,
+        "regenerated manifest differs"
+    );
     assert_eq!(summary.files.len(), committed.len());
 
     // The committed files match their manifest (nobody edited a generated file by hand).
