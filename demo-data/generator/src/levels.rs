@@ -16,7 +16,7 @@ use crate::tide::TideModel;
 pub const MIN_DAY_COMPLETENESS: f64 = 0.75;
 
 /// Monte Carlo replicates of the noise per candidate day for the expected counts.
-pub const MC_REPLICATES: usize = 2048;
+pub const MC_REPLICATES: usize = 1024;
 
 /// Readings whose deterministic level stays this many noise standard deviations below the
 /// threshold are taken never to reach it (P(z >= 5.5) is about 2e-8 per reading).
