@@ -117,6 +117,15 @@ impl Constituent {
             .sum()
     }
 
+    /// Doodson numbers (coefficients of tau, s, h, p, N', p', with lunar time
+    /// tau = 15 deg/h * UT hours + h - s) and the constant phase in that form, degrees in
+    /// [0, 360): the same argument as [`Constituent::coefficients`] since T = tau + s - h + 180.
+    pub fn doodson(&self) -> ([i32; 6], f64) {
+        let [ct, cs, ch, cp, cp1] = self.coefficients;
+        let offset = (self.offset_deg + 180.0 * f64::from(ct)).rem_euclid(360.0);
+        ([ct, ct + cs, ch - ct, cp, 0, cp1], offset)
+    }
+
     /// Equilibrium argument V in degrees (not reduced) for hour angle `t_deg` and longitudes.
     fn argument(&self, t_deg: f64, lon: &MeanLongitudes) -> f64 {
         let [ct, cs, ch, cp, cp1] = self.coefficients.map(f64::from);
@@ -315,6 +324,25 @@ mod tests {
             assert!((got_lo - lo).abs() < 3e-3, "{kind:?} min {got_lo}");
             assert!((got_hi - hi).abs() < 3e-3, "{kind:?} max {got_hi}");
         }
+    }
+
+    /// Doodson numbers of the IHO constituent list / t_tide (recalled from memory): K1
+    /// 165.555 with +90 deg, O1 145.555 with -90 deg, Sa 056.554.
+    #[test]
+    fn doodson_form_matches_the_usual_numbers() {
+        let by_name = |n: &str| {
+            CONSTITUENTS
+                .iter()
+                .find(|c| c.name == n)
+                .expect("constituent present")
+                .doodson()
+        };
+        assert_eq!(by_name("M2"), ([2, 0, 0, 0, 0, 0], 0.0));
+        assert_eq!(by_name("K1"), ([1, 1, 0, 0, 0, 0], 90.0));
+        assert_eq!(by_name("O1"), ([1, -1, 0, 0, 0, 0], 270.0));
+        assert_eq!(by_name("Q1"), ([1, -2, 0, 1, 0, 0], 270.0));
+        assert_eq!(by_name("N2"), ([2, -1, 0, 1, 0, 0], 0.0));
+        assert_eq!(by_name("Sa"), ([0, 0, 1, 0, 0, -1], 0.0));
     }
 
     /// A pure M2 tide has its high water when V + u = g, i.e. the phase argument is zero.
