@@ -137,4 +137,18 @@ mod tests {
         assert!(crps_ensemble(&[1.0, f64::NAN], 1.0).is_err());
         assert!(crps_ensemble(&[1.0], f64::INFINITY).is_err());
     }
+
+    #[test]
+    fn count_crps_is_the_sum_of_exceedance_brier_scores() {
+        // Threshold decomposition (Gneiting and Ranjan 2011, J. Bus. Econ. Stat. 29): the
+        // CRPS is the Brier score of P(N >= k) summed over every k >= 1.
+        use crate::verify::{brier_case, exceedance_probability};
+        let pmf = [0.35, 0.2, 0.15, 0.1, 0.1, 0.05, 0.05];
+        for y in [0u32, 2, 6, 11] {
+            let summed: f64 = (1..=12)
+                .map(|k| brier_case(exceedance_probability(&pmf, k), y >= k))
+                .sum();
+            assert!((crps_count(&pmf, y) - summed).abs() < 1e-12, "y = {y}");
+        }
+    }
 }
