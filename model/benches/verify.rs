@@ -6,9 +6,7 @@
 #![allow(missing_docs)]
 
 use criterion::{Criterion, black_box, criterion_group, criterion_main};
-use tidetally_model::verify::{
-    Bootstrap, TercileEdges, brier_case, crps_count, exceedance_probability, log_score,
-};
+use tidetally_model::verify::{Bootstrap, CaseScores, TercileEdges};
 
 const SEASONS: usize = 45;
 const MODELS: usize = 3;
@@ -55,45 +53,8 @@ fn hindcast() -> Hindcast {
     }
 }
 
-/// Per-case CRPS, RPS, log score and Brier scores of one model's forecasts.
-struct CaseScores {
-    crps: Vec<f64>,
-    rps: Vec<f64>,
-    log: Vec<f64>,
-    brier: Vec<Vec<f64>>,
-}
-
 fn score_cases(pmfs: &[&[f64]], observed: &[u32], edges: &TercileEdges) -> CaseScores {
-    let crps = pmfs
-        .iter()
-        .zip(observed)
-        .map(|(p, &y)| crps_count(p, y))
-        .collect();
-    let rps = pmfs
-        .iter()
-        .zip(observed)
-        .map(|(p, &y)| edges.rps(p, y))
-        .collect();
-    let log = pmfs
-        .iter()
-        .zip(observed)
-        .map(|(p, &y)| log_score(p, y))
-        .collect();
-    let brier = EXCEED_DAYS
-        .iter()
-        .map(|&k| {
-            pmfs.iter()
-                .zip(observed)
-                .map(|(p, &y)| brier_case(exceedance_probability(p, k), y >= k))
-                .collect()
-        })
-        .collect();
-    CaseScores {
-        crps,
-        rps,
-        log,
-        brier,
-    }
+    CaseScores::compute(pmfs, observed, edges, &EXCEED_DAYS).expect("paired cases")
 }
 
 /// The whole verification step: score every case once, then bootstrap CRPS, RPS and the
@@ -128,7 +89,7 @@ fn verify_hindcast(h: &Hindcast, boot: &Bootstrap) -> f64 {
             total += interval.lower;
         }
     }
-    total + reference.log[0]
+    total + reference.log[0] + reference.absolute_error[0]
 }
 
 fn bench_verify(c: &mut Criterion) {
@@ -136,9 +97,10 @@ fn bench_verify(c: &mut Criterion) {
     let boot = Bootstrap::new(1000, 1).expect("enough resamples");
     let edges = TercileEdges::from_reference(&h.climatology).expect("valid climatology");
     let pmfs: Vec<&[f64]> = h.forecasts[0].iter().map(Vec::as_slice).collect();
-    c.bench_function("score 45 cases once (crps, rps, log, 3 brier)", |b| {
-        b.iter(|| score_cases(black_box(&pmfs), black_box(&h.observed), &edges))
-    });
+    c.bench_function(
+        "score 45 cases once (crps, rps, log, abs error, 3 brier)",
+        |b| b.iter(|| score_cases(black_box(&pmfs), black_box(&h.observed), &edges)),
+    );
     let reference = score_cases(
         &vec![h.climatology.as_slice(); SEASONS],
         &h.observed,

@@ -23,7 +23,10 @@ use super::{VerifyError, check_event_forecasts};
 pub fn exceedance_probability(pmf: &[f64], days: u32) -> f64 {
     let start = (days as usize).min(pmf.len());
     // A fold from +0.0: an empty float sum is -0.0, which would print as "-0.0".
-    pmf[start..].iter().fold(0.0, |sum, p| sum + p).clamp(0.0, 1.0)
+    pmf[start..]
+        .iter()
+        .fold(0.0, |sum, p| sum + p)
+        .clamp(0.0, 1.0)
 }
 
 /// Brier score of one case.

@@ -263,7 +263,10 @@ mod tests {
             vec![1.0],
             vec![0.05, 0.1, 0.2, 0.3, 0.2, 0.1, 0.05],
         ] {
-            assert!(close(expected_self_rps(&reference), 2.0 / 9.0), "{reference:?}");
+            assert!(
+                close(expected_self_rps(&reference), 2.0 / 9.0),
+                "{reference:?}"
+            );
         }
     }
 
