@@ -12,7 +12,7 @@
 //! - [`reliability`]: reliability-diagram bins;
 //! - [`roc`]: relative operating characteristic points and area;
 //! - [`sedi`]: 2x2 contingency tables and the symmetric extremal dependence index;
-//! - [`log_score`]: logarithmic (ignorance) score, and the absolute error of the forecast mean;
+//! - [`log_score`](mod@log_score): logarithmic (ignorance) score, and the absolute error of the forecast mean;
 //! - [`skill`]: skill score `1 - score / reference`;
 //! - [`cases`]: all per-case scores of one forecast system, computed once;
 //! - [`bootstrap`]: seeded case resampling of precomputed per-case scores into a 95 % interval
