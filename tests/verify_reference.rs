@@ -191,3 +191,29 @@ fn roc_points_and_area_match_scikit_learn() {
         roc["area"].as_f64().expect("area"),
     );
 }
+
+/// Runs `tidetally score --input FILE` through the command dispatcher on `json`.
+fn run_score(name: &str, json: &str) -> Result<(), String> {
+    use tidetally_server::cli::{Cli, Command, ScoreArgs, run};
+    let input = std::env::temp_dir().join(format!("tidetally-{}-{name}.json", std::process::id()));
+    std::fs::write(&input, json).expect("temp dir is writable");
+    let result = run(Cli {
+        command: Command::Score(ScoreArgs {
+            input: input.clone(),
+        }),
+    });
+    std::fs::remove_file(&input).expect("just written");
+    result.map_err(|e| format!("{e:#}"))
+}
+
+#[test]
+fn score_command_scores_valid_input_and_names_the_bad_case() {
+    // The input shape fixed in DESIGN.md (`score --input FILE`).
+    let good = r#"{"cases": [{"pmf": [0.5, 0.3, 0.2], "observed": 1},
+                             {"pmf": [0.1, 0.2, 0.3, 0.4], "observed": 3}],
+                   "exceed_days": [2], "category_edges": [1, 3]}"#;
+    assert_eq!(run_score("good", good), Ok(()));
+    let bad = r#"{"cases": [{"pmf": [1.0], "observed": 0}, {"pmf": [0.6, 0.6], "observed": 1}]}"#;
+    let err = run_score("bad", bad).expect_err("pmf sums to 1.2");
+    assert!(err.contains("case 1") && err.contains("pmf"), "{err}");
+}
