@@ -4,6 +4,8 @@
 //! practice), a trend-fit coverage experiment on synthetic truth, and equal weighting of
 //! multi-model forecasts.
 
+#![allow(clippy::unwrap_used)] // a failed unwrap is a failed test
+
 use std::fs::File;
 use std::io::BufReader;
 use std::path::PathBuf;

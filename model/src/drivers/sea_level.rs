@@ -140,7 +140,8 @@ pub struct TrendValue {
 impl TrendValue {
     /// The central interval holding the truth with probability `level` (e.g. 0.95).
     pub fn interval(&self, level: f64) -> (f64, f64) {
-        if !(self.std_error > 0.0) || !(level > 0.0 && level < 1.0) {
+        let level_ok = level > 0.0 && level < 1.0;
+        if self.std_error.is_nan() || self.std_error <= 0.0 || !level_ok {
             return (self.value, self.value);
         }
         let p = 0.5 + level / 2.0;
@@ -313,7 +314,7 @@ pub fn fit_trend(months: &[MonthlyMeanLevel], shape: TrendShape) -> Result<Trend
     } else {
         n as f64
     };
-    if !(n_eff >= p as f64 + 2.0) {
+    if n_eff.is_nan() || n_eff < p as f64 + 2.0 {
         return Err(TrendError::TooFewEffective {
             r1,
             n_eff,
@@ -364,7 +365,7 @@ impl Projection {
                 "point ({y}, {l}) is not finite"
             )));
         }
-        if let Some(w) = points.windows(2).find(|w| !(w[1].0 > w[0].0)) {
+        if let Some(w) = points.windows(2).find(|w| w[1].0 <= w[0].0) {
             return Err(TrendError::BadProjection(format!(
                 "years must increase: {} then {}",
                 w[0].0, w[1].0
@@ -467,6 +468,7 @@ impl SeaLevelSource {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 
