@@ -20,8 +20,8 @@ use tidetally_model::drivers::sea_level::month_mid_year;
 use tidetally_model::drivers::wind::uv_from_speed_direction;
 use tidetally_model::drivers::{
     Coast, Driver, EnsoCategory, EnsoForecast, ForecastError, MonthlyMeanLevel, PastSeason,
-    Resampling, ScenarioError, ScenarioGenerator, TrendShape, WindSeries, WindStatistic, fit_trend,
-    rmm_state,
+    Resampling, ScenarioError, ScenarioGenerator, SeasonalCycle, TrendShape, WindSeries,
+    WindStatistic, fit_trend, rmm_state,
 };
 use tidetally_model::season::{Season, SeasonSpec};
 
@@ -226,9 +226,16 @@ const TRUE_ACCEL: f64 = 0.0001; // m/yr^2
 const NOISE_SD: f64 = 0.06; // m, stationary standard deviation
 const NOISE_PHI: f64 = 0.6; // lag-1 autocorrelation of monthly noise
 
+const ANNUAL_AMPLITUDE: f64 = 0.08; // m, a typical mid-latitude annual cycle (from memory)
+
 fn true_level(t: f64) -> f64 {
     let x = t - 2000.0;
     0.2 + TRUE_RATE * x + 0.5 * TRUE_ACCEL * x * x
+}
+
+fn seasonal_cycle(t: f64) -> f64 {
+    let w = std::f64::consts::TAU * t;
+    ANNUAL_AMPLITUDE * (w - 1.0).cos() + 0.02 * (2.0 * w).sin()
 }
 
 fn synthetic_record(rng: &mut ChaCha8Rng) -> Vec<MonthlyMeanLevel> {
@@ -243,7 +250,10 @@ fn synthetic_record(rng: &mut ChaCha8Rng) -> Vec<MonthlyMeanLevel> {
             MonthlyMeanLevel {
                 year,
                 month,
-                mean_m: true_level(month_mid_year(year, month).unwrap()) + noise,
+                mean_m: {
+                    let t = month_mid_year(year, month).unwrap();
+                    true_level(t) + seasonal_cycle(t) + noise
+                },
                 readings: 720,
             }
         })
@@ -259,7 +269,12 @@ fn trend_recovers_rate_and_acceleration_with_honest_intervals() {
     let (mut mean_rate, mut mean_accel) = (0.0, 0.0);
     for seed in 0..REPLICATES as u64 {
         let mut rng = ChaCha8Rng::seed_from_u64(seed);
-        let fit = fit_trend(&synthetic_record(&mut rng), TrendShape::Quadratic).unwrap();
+        let fit = fit_trend(
+            &synthetic_record(&mut rng),
+            TrendShape::Quadratic,
+            SeasonalCycle::AnnualSemiannual,
+        )
+        .unwrap();
         let rate = fit.rate_at(2000.0);
         let accel = fit.acceleration().unwrap();
         let future = fit.level_at(t_future);
@@ -272,7 +287,8 @@ fn trend_recovers_rate_and_acceleration_with_honest_intervals() {
         cover_accel += usize::from(covers(&accel, TRUE_ACCEL));
         cover_future += usize::from(covers(&future, true_level(t_future)));
         // Without the AR(1) inflation the interval is too narrow.
-        let shrink = ((fit.effective_months - 3.0) / (fit.months_used as f64 - 3.0)).sqrt();
+        let p = fit.coefficients.len() as f64;
+        let shrink = ((fit.effective_months - p) / (fit.months_used as f64 - p)).sqrt();
         let naive_half = 1.96 * rate.std_error * shrink;
         naive_rate += usize::from((rate.value - TRUE_RATE).abs() <= naive_half);
         mean_rate += rate.value / REPLICATES as f64;
@@ -308,6 +324,23 @@ fn trend_recovers_rate_and_acceleration_with_honest_intervals() {
         naive < 0.85,
         "uninflated coverage {naive} should fall short"
     );
+}
+
+#[test]
+fn seasonal_cycle_left_in_passes_for_autocorrelation() {
+    let mut rng = ChaCha8Rng::seed_from_u64(99);
+    let record = synthetic_record(&mut rng);
+    let with = fit_trend(&record, TrendShape::Linear, SeasonalCycle::AnnualSemiannual).unwrap();
+    let without = fit_trend(&record, TrendShape::Linear, SeasonalCycle::Omitted).unwrap();
+    // With the cycle fitted, the residual lag-1 autocorrelation is the noise's own 0.6
+    // (sampling SD about 0.04 at n = 480).
+    assert!(
+        (with.lag1_autocorrelation - NOISE_PHI).abs() < 0.1,
+        "{}",
+        with.lag1_autocorrelation
+    );
+    assert!(without.residual_sd > with.residual_sd);
+    assert!(without.lag1_autocorrelation > with.lag1_autocorrelation);
 }
 
 // ---- Multi-model ENSO forecasts pooled with equal weight per model (common practice for
