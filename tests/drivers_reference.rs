@@ -371,6 +371,11 @@ fn equal_weight_per_model_not_per_member() {
 fn forecast_files_are_validated() {
     let p = forecast_fixture("forecast-probabilities.json");
     assert_eq!(p.season.label(), "2026-DJF");
+    assert!(p.check_season(&"2026-DJF".parse().unwrap()).is_ok());
+    assert!(matches!(
+        p.check_season(&"2027-DJF".parse().unwrap()),
+        Err(ScenarioError::WrongSeason { .. })
+    ));
     assert_eq!(p.issued, NaiveDate::from_ymd_opt(2026, 11, 15).unwrap());
     let cases = [
         (
