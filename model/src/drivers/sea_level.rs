@@ -4,7 +4,7 @@
 //! The trend is fitted by ordinary least squares (linfa-linear's `LinearRegression`) on time
 //! centred at the record's mean time, linear or quadratic. Its covariance is
 //! `s^2 (X'X)^-1` with `s^2` the residual variance, then inflated for the autocorrelation of
-//! monthly residuals: with `r1` their lag-1 autocorrelation (pairs of consecutive months only),
+//! monthly residuals: with `r1` their lag-1 sample autocorrelation (pairs of consecutive months only),
 //! the effective sample size is `n_eff = n (1 - r1) / (1 + r1)` (AR(1); no change when
 //! `r1 <= 0`) and the covariance is multiplied by `(n - p) / (n_eff - p)` for `p` parameters,
 //! i.e. the residual variance is taken over `n_eff - p` degrees of freedom (Santer et al. 2000,
@@ -354,8 +354,10 @@ pub fn fit_trend(
             lag_pairs += 1;
         }
     }
+    // The usual sample autocorrelation sum(e_t e_t+1) / sum(e_t^2) (residuals have mean 0);
+    // when gaps remove month pairs, the lag sum is scaled up to n - 1 pairs.
     let r1 = if lag_pairs > 0 && rss > 0.0 {
-        (lag_sum / lag_pairs as f64) / (rss / n as f64)
+        lag_sum * (n - 1) as f64 / lag_pairs as f64 / rss
     } else {
         0.0
     };
