@@ -169,3 +169,6 @@ pub enum GlmError {
         why: &'static str,
     },
 }
+
+#[cfg(test)]
+mod synthetic_tests;
