@@ -60,9 +60,21 @@ impl Variance {
         match self {
             Variance::Poisson => ylogmu - mu - ln_gamma(y + 1.0),
             Variance::Negbin(theta) => {
-                ln_gamma(theta + y) - ln_gamma(theta) - ln_gamma(y + 1.0) + theta * theta.ln()
-                    + ylogmu
-                    - (theta + y) * (theta + mu).ln()
+                // ln Gamma(theta+y) - ln Gamma(theta) - y ln(theta+mu) as the exact finite sum
+                // sum_{j<y} ln((theta+j)/(theta+mu)) for small counts: no cancellation when
+                // theta is large.
+                let ratio_terms = if y <= 200.0 {
+                    let mut acc = 0.0;
+                    let mut j = 0.0;
+                    while j < y {
+                        acc += ((j - mu) / (theta + mu)).ln_1p();
+                        j += 1.0;
+                    }
+                    acc
+                } else {
+                    ln_gamma(theta + y) - ln_gamma(theta) - y * (theta + mu).ln()
+                };
+                ratio_terms + ylogmu - ln_gamma(y + 1.0) - theta * (mu / theta).ln_1p()
             }
         }
     }
