@@ -2,6 +2,8 @@
 //! table R timed in tests/fixtures/glm/bench_45x6.json), leave-one-out of 45 NB refits, and a
 //! predictive pmf mixed over 1,000 parameter draws.
 
+#![allow(missing_docs, reason = "criterion_group! generates undocumented functions")]
+
 use criterion::{Criterion, black_box, criterion_group, criterion_main};
 use tidetally_model::glm::{ColumnSpec, FamilyRequest, GlmData, OffsetColumn, fit, read_table};
 
@@ -39,7 +41,11 @@ fn count_models(c: &mut Criterion) {
     let x = data.predictor_row(0);
     let offset = 90f64.ln();
     c.bench_function("glm predictive pmf 1000 draws n_max 90", |b| {
-        b.iter(|| fitted.predictive(black_box(&x), offset, 90, 1000, 42).expect("predicts"))
+        b.iter(|| {
+            fitted
+                .predictive(black_box(&x), offset, 90, 1000, 42)
+                .expect("predicts")
+        })
     });
 }
 

@@ -81,12 +81,18 @@ impl Variance {
 
     /// The deviance of fitted means `mu`.
     pub(super) fn deviance(self, y: &[f64], mu: &[f64]) -> f64 {
-        y.iter().zip(mu).map(|(&y, &m)| self.unit_deviance(y, m)).sum()
+        y.iter()
+            .zip(mu)
+            .map(|(&y, &m)| self.unit_deviance(y, m))
+            .sum()
     }
 
     /// The log-likelihood of fitted means `mu`.
     pub(super) fn log_likelihood(self, y: &[f64], mu: &[f64]) -> f64 {
-        y.iter().zip(mu).map(|(&y, &m)| self.log_density(y, m)).sum()
+        y.iter()
+            .zip(mu)
+            .map(|(&y, &m)| self.log_density(y, m))
+            .sum()
     }
 }
 
@@ -127,8 +133,9 @@ pub(super) fn irls(
             working[i] = eta[i] - offset[i] + (y[i] - mu[i]) / mu[i];
         }
         weighted_normal_equations(design, &weights, &working, &mut xtwx, &mut xtwz);
-        let chol = nalgebra::Cholesky::new(xtwx.clone())
-            .ok_or(GlmError::Numerical("the weighted information matrix X'WX is singular"))?;
+        let chol = nalgebra::Cholesky::new(xtwx.clone()).ok_or(GlmError::Numerical(
+            "the weighted information matrix X'WX is singular",
+        ))?;
         let coefficients = chol.solve(&xtwz);
         let linear = design * &coefficients;
         for i in 0..n {
@@ -148,7 +155,9 @@ pub(super) fn irls(
             }
             weighted_normal_equations(design, &weights, &working, &mut xtwx, &mut xtwz);
             let covariance = nalgebra::Cholesky::new(xtwx.clone())
-                .ok_or(GlmError::Numerical("the information matrix X'WX is singular"))?
+                .ok_or(GlmError::Numerical(
+                    "the information matrix X'WX is singular",
+                ))?
                 .inverse();
             return Ok(IrlsFit {
                 coefficients,

@@ -60,7 +60,10 @@ fn gamma_differences(theta: f64, y: f64) -> (f64, f64) {
         }
         (s1, s2)
     } else {
-        (digamma(theta + y) - digamma(theta), trigamma(theta) - trigamma(theta + y))
+        (
+            digamma(theta + y) - digamma(theta),
+            trigamma(theta) - trigamma(theta + y),
+        )
     }
 }
 
@@ -86,7 +89,11 @@ fn score_and_information(theta: f64, y: &[f64], mu: &[f64]) -> (f64, f64) {
 /// would leave the positive half-line or the curvature is not concave.
 pub(super) fn theta_ml(y: &[f64], mu: &[f64], start: Option<f64>) -> Result<ThetaMl, GlmError> {
     let n = y.len() as f64;
-    let moment = n / y.iter().zip(mu).map(|(&y, &m)| (y / m - 1.0).powi(2)).sum::<f64>();
+    let moment = n / y
+        .iter()
+        .zip(mu)
+        .map(|(&y, &m)| (y / m - 1.0).powi(2))
+        .sum::<f64>();
     let mut theta = match start {
         Some(t) if t.is_finite() && t > 0.0 => t,
         _ if moment.is_finite() && moment > 0.0 => moment.min(THETA_INFINITE),
@@ -106,8 +113,8 @@ pub(super) fn theta_ml(y: &[f64], mu: &[f64], start: Option<f64>) -> Result<Thet
         if next > THETA_INFINITE {
             return Ok(ThetaMl::Infinite);
         }
-        let settled = (next - theta).abs() <= THETA_TOLERANCE * theta
-            || s.abs() <= SCORE_NOISE_PER_ROW * n;
+        let settled =
+            (next - theta).abs() <= THETA_TOLERANCE * theta || s.abs() <= SCORE_NOISE_PER_ROW * n;
         theta = next;
         if settled {
             let (_, info) = score_and_information(theta, y, mu);
@@ -168,7 +175,10 @@ pub(super) fn fit_negbin(
         mu.clone_from(&fit.mu);
         let previous = theta;
         match theta_ml(y, &mu, Some(theta))? {
-            ThetaMl::Finite { theta: t, std_error } => {
+            ThetaMl::Finite {
+                theta: t,
+                std_error,
+            } => {
                 theta = t;
                 theta_se = std_error;
             }

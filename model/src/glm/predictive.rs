@@ -5,8 +5,8 @@
 
 use nalgebra::DVector;
 use rand::Rng;
-use rand_chacha::ChaCha8Rng;
 use rand::SeedableRng;
+use rand_chacha::ChaCha8Rng;
 use rand_distr::StandardNormal;
 use serde::Serialize;
 
@@ -243,7 +243,10 @@ impl PmfMixture {
 
     fn add_kernel(&mut self, kernel: Kernel) {
         let mass = fill_pmf(kernel, &mut self.scratch);
-        self.sum.iter_mut().zip(&self.scratch).for_each(|(s, p)| *s += p);
+        self.sum
+            .iter_mut()
+            .zip(&self.scratch)
+            .for_each(|(s, p)| *s += p);
         self.components += 1;
         self.truncated_mass += mass;
     }
@@ -324,8 +327,12 @@ impl FittedGlm {
         let centre = DVector::from_iterator(q, self.coefficients.iter().map(|c| c.estimate));
         (0..n)
             .map(|_| {
-                let e = DVector::from_iterator(q, (0..q).map(|_| rng.sample::<f64, _>(StandardNormal)));
-                (&centre + &self.covariance_factor * e).iter().copied().collect()
+                let e =
+                    DVector::from_iterator(q, (0..q).map(|_| rng.sample::<f64, _>(StandardNormal)));
+                (&centre + &self.covariance_factor * e)
+                    .iter()
+                    .copied()
+                    .collect()
             })
             .collect()
     }
@@ -386,7 +393,12 @@ impl FittedGlm {
     }
 
     /// The family's pmf at the point estimate for a new row (no parameter uncertainty).
-    pub fn point_pmf(&self, x: &[f64], offset: f64, n_max: usize) -> Result<TruncatedPmf, GlmError> {
+    pub fn point_pmf(
+        &self,
+        x: &[f64],
+        offset: f64,
+        n_max: usize,
+    ) -> Result<TruncatedPmf, GlmError> {
         let mu = self.mean(x, offset)?;
         match (self.family, self.theta) {
             (Family::Negbin, Some(t)) => negbin_pmf(mu, t.estimate, n_max),
@@ -420,8 +432,14 @@ mod tests {
         let p = poisson_pmf(mu, 400).expect("valid");
         for k in 0..60u64 {
             let rel = |a: f64, b: f64| (a - b).abs() / b;
-            assert!(rel(t.distribution.pmf[k as usize], nb.pmf(k)) < 1e-10, "nb k={k}");
-            assert!(rel(p.distribution.pmf[k as usize], po.pmf(k)) < 1e-10, "poisson k={k}");
+            assert!(
+                rel(t.distribution.pmf[k as usize], nb.pmf(k)) < 1e-10,
+                "nb k={k}"
+            );
+            assert!(
+                rel(p.distribution.pmf[k as usize], po.pmf(k)) < 1e-10,
+                "poisson k={k}"
+            );
             assert!(
                 (negbin_log_pmf(k as f64, mu, theta) - nb.ln_pmf(k)).abs() < 1e-10,
                 "log k={k}"

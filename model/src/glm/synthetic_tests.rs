@@ -14,7 +14,9 @@ const TRUE_THETA: f64 = 3.0;
 fn simulate(rng: &mut ChaCha8Rng, theta: Option<f64>) -> GlmData {
     let n = 100;
     let x1: Vec<f64> = (0..n).map(|_| rng.sample(StandardNormal)).collect();
-    let x2: Vec<f64> = (0..n).map(|_| 2.0 + rng.sample::<f64, _>(StandardNormal)).collect();
+    let x2: Vec<f64> = (0..n)
+        .map(|_| 2.0 + rng.sample::<f64, _>(StandardNormal))
+        .collect();
     let exposure = vec![90.0; n];
     let response = (0..n)
         .map(|i| {
@@ -61,15 +63,27 @@ fn coverage(theta: Option<f64>, request: FamilyRequest, seed: u64) -> Vec<f64> {
 /// standard error of a coverage share is 1.3% here, so 3% is 2.4 of them).
 #[test]
 fn negbin_intervals_cover_the_truth() {
-    for (j, share) in coverage(Some(TRUE_THETA), FamilyRequest::Negbin, 11).iter().enumerate() {
-        assert!((share - 0.95).abs() <= 0.03, "coefficient {j}: coverage {share}");
+    for (j, share) in coverage(Some(TRUE_THETA), FamilyRequest::Negbin, 11)
+        .iter()
+        .enumerate()
+    {
+        assert!(
+            (share - 0.95).abs() <= 0.03,
+            "coefficient {j}: coverage {share}"
+        );
     }
 }
 
 #[test]
 fn poisson_intervals_cover_the_truth() {
-    for (j, share) in coverage(None, FamilyRequest::Poisson, 12).iter().enumerate() {
-        assert!((share - 0.95).abs() <= 0.03, "coefficient {j}: coverage {share}");
+    for (j, share) in coverage(None, FamilyRequest::Poisson, 12)
+        .iter()
+        .enumerate()
+    {
+        assert!(
+            (share - 0.95).abs() <= 0.03,
+            "coefficient {j}: coverage {share}"
+        );
     }
 }
 
@@ -89,7 +103,10 @@ fn theta_is_recovered_and_auto_picks_the_right_family() {
     }
     assert!(negbin_picked >= 48, "{negbin_picked}");
     let mean_theta = (log_theta / negbin_picked as f64).exp();
-    assert!((mean_theta / TRUE_THETA - 1.0).abs() < 0.25, "geometric mean theta {mean_theta}");
+    assert!(
+        (mean_theta / TRUE_THETA - 1.0).abs() < 0.25,
+        "geometric mean theta {mean_theta}"
+    );
 
     let mut poisson_picked = 0;
     for _ in 0..50 {
@@ -145,11 +162,17 @@ fn underdispersed_counts_fall_back_to_poisson() {
 fn parameter_draws_follow_the_estimated_covariance() {
     let mut rng = ChaCha8Rng::seed_from_u64(21);
     let fitted = fit(&simulate(&mut rng, Some(TRUE_THETA)), FamilyRequest::Negbin).expect("fits");
-    let a = fitted.predictive(&[0.5, 2.0], 90f64.ln(), 90, 500, 7).expect("predicts");
-    let b = fitted.predictive(&[0.5, 2.0], 90f64.ln(), 90, 500, 7).expect("predicts");
+    let a = fitted
+        .predictive(&[0.5, 2.0], 90f64.ln(), 90, 500, 7)
+        .expect("predicts");
+    let b = fitted
+        .predictive(&[0.5, 2.0], 90f64.ln(), 90, 500, 7)
+        .expect("predicts");
     assert_eq!(a, b);
     assert_eq!(a.distribution.pmf.len(), 91);
-    let point = fitted.predictive(&[0.5, 2.0], 90f64.ln(), 90, 0, 7).expect("predicts");
+    let point = fitted
+        .predictive(&[0.5, 2.0], 90f64.ln(), 90, 0, 7)
+        .expect("predicts");
     // Parameter uncertainty widens the distribution.
     assert!(a.distribution.variance() > point.distribution.variance());
 
@@ -157,15 +180,23 @@ fn parameter_draws_follow_the_estimated_covariance() {
     let n = 20_000;
     let draws = fitted.draw_coefficients(&mut rng, n);
     let q = fitted.coefficients.len();
-    let mean: Vec<f64> = (0..q).map(|j| draws.iter().map(|d| d[j]).sum::<f64>() / n as f64).collect();
+    let mean: Vec<f64> = (0..q)
+        .map(|j| draws.iter().map(|d| d[j]).sum::<f64>() / n as f64)
+        .collect();
     for i in 0..q {
         let se_i = fitted.covariance[i][i].sqrt();
         assert!((mean[i] - fitted.coefficients[i].estimate).abs() < 0.05 * se_i);
         for j in 0..q {
-            let cov: f64 = draws.iter().map(|d| (d[i] - mean[i]) * (d[j] - mean[j])).sum::<f64>()
+            let cov: f64 = draws
+                .iter()
+                .map(|d| (d[i] - mean[i]) * (d[j] - mean[j]))
+                .sum::<f64>()
                 / (n as f64 - 1.0);
             let scale = se_i * fitted.covariance[j][j].sqrt();
-            assert!((cov - fitted.covariance[i][j]).abs() < 0.04 * scale, "cov[{i}][{j}]");
+            assert!(
+                (cov - fitted.covariance[i][j]).abs() < 0.04 * scale,
+                "cov[{i}][{j}]"
+            );
         }
     }
     let thetas: Vec<f64> = fitted
@@ -174,7 +205,12 @@ fn parameter_draws_follow_the_estimated_covariance() {
         .map(|d| d.theta.expect("negbin draws theta").ln())
         .collect();
     let t = fitted.theta.expect("theta");
-    let sd = (thetas.iter().map(|l| (l - t.estimate.ln()).powi(2)).sum::<f64>() / 5000.0).sqrt();
+    let sd = (thetas
+        .iter()
+        .map(|l| (l - t.estimate.ln()).powi(2))
+        .sum::<f64>()
+        / 5000.0)
+        .sqrt();
     assert!((sd / (t.std_error / t.estimate) - 1.0).abs() < 0.05);
 }
 
@@ -195,6 +231,9 @@ fn leave_one_out_and_linear_predictor() {
     fit(&held_out, FamilyRequest::Negbin).expect("refit");
     assert!(matches!(
         fitted.linear_predictor(&[1.0], 0.0),
-        Err(GlmError::PredictorCount { expected: 2, found: 1 })
+        Err(GlmError::PredictorCount {
+            expected: 2,
+            found: 1
+        })
     ));
 }
