@@ -6,7 +6,7 @@ use serde::Serialize;
 use statrs::function::erf::erfc;
 
 use super::data::GlmData;
-use super::irls::{IrlsFit, Variance, irls, separated_rows};
+use super::irls::{IrlsFit, Variance, irls, ln_factorial_sum, separated_rows};
 use super::{Family, FamilyChoice, GlmError};
 
 /// The 97.5% quantile of the standard normal, for 95% Wald intervals.
@@ -155,7 +155,7 @@ impl FittedGlm {
             .zip(&fit.mu)
             .map(|(&y, &m)| (y - m).powi(2) / variance.variance(m))
             .sum::<f64>();
-        let log_likelihood = variance.log_likelihood(y, &fit.mu);
+        let log_likelihood = variance.log_likelihood_kernel(y, &fit.mu) - ln_factorial_sum(y);
         let k = (q + usize::from(theta.is_some())) as f64;
         let null = null_deviance(data, variance)?;
         Ok(FittedGlm {

@@ -54,27 +54,38 @@ impl Variance {
         }
     }
 
-    /// The log-probability of count `y` at mean `mu`.
-    pub(super) fn log_density(self, y: f64, mu: f64) -> f64 {
+    /// The log-probability of count `y` at mean `mu`, without the `-ln y!` term (a constant
+    /// of the data, see [`ln_factorial_sum`]).
+    pub(super) fn log_density_kernel(self, y: f64, mu: f64) -> f64 {
         let ylogmu = if y > 0.0 { y * mu.ln() } else { 0.0 };
         match self {
-            Variance::Poisson => ylogmu - mu - ln_gamma(y + 1.0),
+            Variance::Poisson => ylogmu - mu,
             Variance::Negbin(theta) => {
-                // ln Gamma(theta+y) - ln Gamma(theta) - y ln(theta+mu) as the exact finite sum
-                // sum_{j<y} ln((theta+j)/(theta+mu)) for small counts: no cancellation when
-                // theta is large.
-                let ratio_terms = if y <= 200.0 {
+                // ln Gamma(theta+y) - ln Gamma(theta) - y ln(theta+mu) is, for a whole count,
+                // ln prod_{j<y} (theta+j)/(theta+mu): exact and free of the cancellation that
+                // ln Gamma differences suffer at large theta. Logs are taken every 16 factors
+                // so the product can neither overflow nor underflow.
+                let ratio_terms = if y <= 400.0 {
+                    let denominator = theta + mu;
                     let mut acc = 0.0;
+                    let mut product = 1.0;
                     let mut j = 0.0;
+                    let mut pending = 0;
                     while j < y {
-                        acc += ((j - mu) / (theta + mu)).ln_1p();
+                        product *= (theta + j) / denominator;
                         j += 1.0;
+                        pending += 1;
+                        if pending == 16 {
+                            acc += product.ln();
+                            product = 1.0;
+                            pending = 0;
+                        }
                     }
-                    acc
+                    acc + product.ln()
                 } else {
                     ln_gamma(theta + y) - ln_gamma(theta) - y * (theta + mu).ln()
                 };
-                ratio_terms + ylogmu - ln_gamma(y + 1.0) - theta * (mu / theta).ln_1p()
+                ratio_terms + ylogmu - theta * (mu / theta).ln_1p()
             }
         }
     }
@@ -87,13 +98,18 @@ impl Variance {
             .sum()
     }
 
-    /// The log-likelihood of fitted means `mu`.
-    pub(super) fn log_likelihood(self, y: &[f64], mu: &[f64]) -> f64 {
+    /// The log-likelihood of fitted means `mu` without the constant `-sum ln y!`.
+    pub(super) fn log_likelihood_kernel(self, y: &[f64], mu: &[f64]) -> f64 {
         y.iter()
             .zip(mu)
-            .map(|(&y, &m)| self.log_density(y, m))
+            .map(|(&y, &m)| self.log_density_kernel(y, m))
             .sum()
     }
+}
+
+/// `sum ln y!`, the data's constant in every count log-likelihood.
+pub(super) fn ln_factorial_sum(y: &[f64]) -> f64 {
+    y.iter().map(|&y| ln_gamma(y + 1.0)).sum()
 }
 
 /// A converged IRLS fit, on the scale of the design it was given.

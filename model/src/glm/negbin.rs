@@ -169,7 +169,7 @@ pub(super) fn fit_negbin(
         ThetaMl::Infinite => return Ok(NegbinOutcome::ThetaInfinite),
     };
     let mut theta_se;
-    let mut loglik = Variance::Negbin(theta).log_likelihood(y, &mu);
+    let mut loglik = Variance::Negbin(theta).log_likelihood_kernel(y, &mu);
     for alternation in 1..=MAX_ALTERNATIONS {
         let fit = irls(design, y, offset, Variance::Negbin(theta), &mu)?;
         mu.clone_from(&fit.mu);
@@ -185,7 +185,7 @@ pub(super) fn fit_negbin(
             ThetaMl::Infinite => return Ok(NegbinOutcome::ThetaInfinite),
         }
         let previous_loglik = loglik;
-        loglik = Variance::Negbin(theta).log_likelihood(y, &mu);
+        loglik = Variance::Negbin(theta).log_likelihood_kernel(y, &mu);
         let change = (loglik - previous_loglik).abs() / d1 + (theta - previous).abs() / theta_se;
         if change < ALTERNATION_TOLERANCE {
             // One last IRLS pass at the final theta so coefficients, weights and theta agree.

@@ -241,6 +241,19 @@ impl PmfMixture {
         Ok(())
     }
 
+    /// Adds an already built component (e.g. another mixture); counts beyond this mixture's
+    /// `n_max` are folded into its truncated mass and the component is renormalised.
+    pub fn add_distribution(&mut self, component: &CountDistribution) {
+        let kept: f64 = component.pmf.iter().take(self.sum.len()).sum();
+        if kept > 0.0 {
+            for (s, p) in self.sum.iter_mut().zip(&component.pmf) {
+                *s += p / kept;
+            }
+            self.components += 1;
+            self.truncated_mass += (1.0 - kept).max(0.0);
+        }
+    }
+
     fn add_kernel(&mut self, kernel: Kernel) {
         let mass = fill_pmf(kernel, &mut self.scratch);
         self.sum
@@ -491,6 +504,13 @@ mod tests {
         for k in 0..=40 {
             let want = 0.5 * (a.distribution.pmf[k] + b.distribution.pmf[k]);
             assert!((mixed.distribution.pmf[k] - want).abs() < 1e-15);
+        }
+        let mut again = PmfMixture::new(40);
+        again.add_distribution(&a.distribution);
+        again.add_distribution(&b.distribution);
+        let again = again.finish().expect("two").distribution;
+        for (x, y) in again.pmf.iter().zip(&mixed.distribution.pmf) {
+            assert!((x - y).abs() < 1e-15);
         }
         assert!(PmfMixture::new(5).finish().is_none());
         assert!(PmfMixture::new(5).add_negbin(1.0, f64::NAN).is_err());
