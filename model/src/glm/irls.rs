@@ -127,6 +127,10 @@ pub(super) struct IrlsFit {
     pub iterations: usize,
 }
 
+/// Relative deviance change for the intermediate IRLS passes inside the theta alternation
+/// (R's default); the final pass uses the tight tolerance.
+pub(super) const INTERMEDIATE_TOLERANCE: f64 = 1e-8;
+
 /// Fits `y ~ design` with a log link and the offset by IRLS, starting from the means `start`.
 pub(super) fn irls(
     design: &DMatrix<f64>,
@@ -134,6 +138,18 @@ pub(super) fn irls(
     offset: &[f64],
     variance: Variance,
     start: &[f64],
+) -> Result<IrlsFit, GlmError> {
+    irls_to(design, y, offset, variance, start, DEVIANCE_TOLERANCE)
+}
+
+/// [`irls`] stopping at relative deviance change `tolerance`.
+pub(super) fn irls_to(
+    design: &DMatrix<f64>,
+    y: &[f64],
+    offset: &[f64],
+    variance: Variance,
+    start: &[f64],
+    tolerance: f64,
 ) -> Result<IrlsFit, GlmError> {
     let (n, q) = design.shape();
     let mut mu = start.to_vec();
@@ -165,7 +181,7 @@ pub(super) fn irls(
         if !dev.is_finite() {
             return Err(GlmError::Numerical("the deviance became non-finite"));
         }
-        if (dev - dev_old).abs() / (dev.abs() + 0.1) < DEVIANCE_TOLERANCE {
+        if (dev - dev_old).abs() / (dev.abs() + 0.1) < tolerance {
             for i in 0..n {
                 weights[i] = variance.weight(mu[i]);
             }

@@ -6,7 +6,7 @@ use nalgebra::DMatrix;
 use statrs::function::gamma::digamma;
 
 use super::GlmError;
-use super::irls::{IrlsFit, Variance, irls};
+use super::irls::{INTERMEDIATE_TOLERANCE, IrlsFit, Variance, irls, irls_to};
 use super::special::trigamma;
 
 /// Theta above which the data are treated as showing no overdispersion (theta -> infinity):
@@ -171,7 +171,14 @@ pub(super) fn fit_negbin(
     let mut theta_se;
     let mut loglik = Variance::Negbin(theta).log_likelihood_kernel(y, &mu);
     for alternation in 1..=MAX_ALTERNATIONS {
-        let fit = irls(design, y, offset, Variance::Negbin(theta), &mu)?;
+        let fit = irls_to(
+            design,
+            y,
+            offset,
+            Variance::Negbin(theta),
+            &mu,
+            INTERMEDIATE_TOLERANCE,
+        )?;
         mu.clone_from(&fit.mu);
         let previous = theta;
         match theta_ml(y, &mu, Some(theta))? {
