@@ -76,11 +76,25 @@ fn check_against_r(name: &str, ours: &FittedGlm, r: &Value) {
         .collect();
     let estimate = numbers(&r["estimate"]);
     let std_error = numbers(&r["std_error"]);
-    assert_eq!(ours.coefficients.len(), names.len(), "{name}: coefficient count");
+    assert_eq!(
+        ours.coefficients.len(),
+        names.len(),
+        "{name}: coefficient count"
+    );
     for (j, c) in ours.coefficients.iter().enumerate() {
         assert_eq!(c.name, names[j]);
-        assert_rel(&format!("{name} {} estimate", c.name), c.estimate, estimate[j], COEFFICIENT_RTOL);
-        assert_rel(&format!("{name} {} std_error", c.name), c.std_error, std_error[j], COEFFICIENT_RTOL);
+        assert_rel(
+            &format!("{name} {} estimate", c.name),
+            c.estimate,
+            estimate[j],
+            COEFFICIENT_RTOL,
+        );
+        assert_rel(
+            &format!("{name} {} std_error", c.name),
+            c.std_error,
+            std_error[j],
+            COEFFICIENT_RTOL,
+        );
     }
     for (what, ours, theirs) in [
         ("deviance", ours.deviance, &r["deviance"]),
@@ -90,14 +104,27 @@ fn check_against_r(name: &str, ours: &FittedGlm, r: &Value) {
         ("bic", ours.bic, &r["bic"]),
         ("pearson_chi2", ours.pearson_chi2, &r["pearson_chi2"]),
     ] {
-        assert_rel(&format!("{name} {what}"), ours, theirs.as_f64().expect("number"), COEFFICIENT_RTOL);
+        assert_rel(
+            &format!("{name} {what}"),
+            ours,
+            theirs.as_f64().expect("number"),
+            COEFFICIENT_RTOL,
+        );
     }
-    assert_eq!(ours.df_residual as f64, r["df_residual"].as_f64().expect("df"));
+    assert_eq!(
+        ours.df_residual as f64,
+        r["df_residual"].as_f64().expect("df")
+    );
     if let Some(theta) = r["theta"].as_f64() {
         let t = ours.theta.expect("negbin fit has theta");
         assert_rel(&format!("{name} theta"), t.estimate, theta, THETA_RTOL);
         let se = r["theta_std_error"].as_f64().expect("theta se");
-        assert_rel(&format!("{name} theta_std_error"), t.std_error, se, THETA_RTOL);
+        assert_rel(
+            &format!("{name} theta_std_error"),
+            t.std_error,
+            se,
+            THETA_RTOL,
+        );
     }
 }
 
@@ -118,8 +145,16 @@ fn dobson_barnett_british_doctors_table_9_2() {
     ];
     for (c, (name, estimate, se)) in ours.coefficients.iter().zip(published) {
         assert_eq!(c.name, name);
-        assert!((c.estimate - estimate).abs() <= 5e-5 + 1e-12, "{name}: {}", c.estimate);
-        assert!((c.std_error - se).abs() <= 5e-5 + 1e-12, "{name} se: {}", c.std_error);
+        assert!(
+            (c.estimate - estimate).abs() <= 5e-5 + 1e-12,
+            "{name}: {}",
+            c.estimate
+        );
+        assert!(
+            (c.std_error - se).abs() <= 5e-5 + 1e-12,
+            "{name} se: {}",
+            c.std_error
+        );
     }
     assert_eq!(ours.df_residual, 5);
     check_against_r("doctors", &ours, &r["poisson"]);
@@ -140,7 +175,14 @@ fn venables_ripley_quine_negative_binomial() {
 /// Both families on every fixture table, against R.
 #[test]
 fn poisson_fits_match_r_on_every_table() {
-    for name in ["doctors", "quine", "quine_additive", "insurance", "warpbreaks", "bench_45x6"] {
+    for name in [
+        "doctors",
+        "quine",
+        "quine_additive",
+        "insurance",
+        "warpbreaks",
+        "bench_45x6",
+    ] {
         let (ours, r) = fit_fixture(name, FamilyRequest::Poisson);
         assert_eq!(ours.family, Family::Poisson);
         check_against_r(name, &ours, &r["poisson"]);
@@ -163,7 +205,11 @@ fn insurance_theta_to_infinity_falls_back_to_poisson() {
     let (ours, r) = fit_fixture("insurance", FamilyRequest::Negbin);
     assert!(r["negbin"]["theta"].as_f64().expect("theta") > 1e6);
     assert_eq!(ours.family, Family::Poisson);
-    assert!(ours.notes.iter().any(|n| n.contains("infinity")), "{:?}", ours.notes);
+    assert!(
+        ours.notes.iter().any(|n| n.contains("infinity")),
+        "{:?}",
+        ours.notes
+    );
     check_against_r("insurance", &ours, &r["poisson"]);
     let (auto, _) = fit_fixture("insurance", FamilyRequest::Auto);
     let choice = auto.family_choice.expect("auto reports its choice");
@@ -180,9 +226,19 @@ fn auto_prefers_negbin_on_overdispersed_quine() {
     let lr = 2.0
         * (r["negbin"]["log_likelihood"].as_f64().expect("ll")
             - r["poisson"]["log_likelihood"].as_f64().expect("ll"));
-    assert_rel("quine LR statistic", choice.lr_statistic, lr, COEFFICIENT_RTOL);
+    assert_rel(
+        "quine LR statistic",
+        choice.lr_statistic,
+        lr,
+        COEFFICIENT_RTOL,
+    );
     assert!(choice.p_value < 1e-10 && choice.reason.contains("negative binomial"));
-    assert_rel("quine aic_poisson", choice.aic_poisson, r["poisson"]["aic"].as_f64().expect("aic"), COEFFICIENT_RTOL);
+    assert_rel(
+        "quine aic_poisson",
+        choice.aic_poisson,
+        r["poisson"]["aic"].as_f64().expect("aic"),
+        COEFFICIENT_RTOL,
+    );
 }
 
 /// Independent cross-check with linfa-linear: at the converged Poisson fit, the IRLS working
@@ -200,7 +256,10 @@ fn poisson_fixed_point_reproduced_by_linfa_linear() {
             .map(|l| l.split(',').map(|c| c.parse().expect("number")).collect())
             .collect();
         let col = |name: &str| header.iter().position(|h| *h == name).expect("column");
-        let predictors: Vec<usize> = ours.coefficients[1..].iter().map(|c| col(&c.name)).collect();
+        let predictors: Vec<usize> = ours.coefficients[1..]
+            .iter()
+            .map(|c| col(&c.name))
+            .collect();
         let offset_col = reference["log_offset"].as_str().map(col);
         let q = ours.coefficients.len();
         let mut x = Array2::<f64>::zeros((rows.len(), q));

@@ -2,7 +2,10 @@
 //! table R timed in tests/fixtures/glm/bench_45x6.json), leave-one-out of 45 NB refits, and a
 //! predictive pmf mixed over 1,000 parameter draws.
 
-#![allow(missing_docs, reason = "criterion_group! generates undocumented functions")]
+#![allow(
+    missing_docs,
+    reason = "criterion_group! generates undocumented functions"
+)]
 
 use criterion::{Criterion, black_box, criterion_group, criterion_main};
 use tidetally_model::glm::{ColumnSpec, FamilyRequest, GlmData, OffsetColumn, fit, read_table};

@@ -138,7 +138,8 @@ pub(crate) fn report(args: &GlmArgs) -> anyhow::Result<GlmReport> {
 }
 
 fn read(path: &Path, columns: &ColumnSpec) -> anyhow::Result<glm::GlmSpec> {
-    let file = std::fs::File::open(path).with_context(|| format!("cannot open {}", path.display()))?;
+    let file =
+        std::fs::File::open(path).with_context(|| format!("cannot open {}", path.display()))?;
     Ok(glm::read_table(
         std::io::BufReader::new(file),
         &path.display().to_string(),
@@ -174,12 +175,21 @@ mod tests {
     /// the saturated two-group Poisson model reproduces each group's rate).
     #[test]
     fn report_has_the_stable_fields_and_the_closed_form_estimates() {
-        let path = write("two-groups.csv", "n,x,days\n3,0,90\n5,0,90\n12,1,80\n9,1,85\n");
+        let path = write(
+            "two-groups.csv",
+            "n,x,days\n3,0,90\n5,0,90\n12,1,80\n9,1,85\n",
+        );
         let report = report(&args(&path, "poisson", Some("days"), true)).expect("fits");
         let json = serde_json::to_value(&report).expect("serialises");
         for key in [
-            "family", "coefficients", "deviance", "null_deviance", "df_residual",
-            "log_likelihood", "aic", "iterations",
+            "family",
+            "coefficients",
+            "deviance",
+            "null_deviance",
+            "df_residual",
+            "log_likelihood",
+            "aic",
+            "iterations",
         ] {
             assert!(json.get(key).is_some(), "missing {key}");
         }
@@ -187,12 +197,18 @@ mod tests {
         assert_eq!(json["coefficients"][0]["name"], "intercept");
         let rate0 = 8.0_f64 / 180.0;
         let rate1 = 21.0_f64 / 165.0;
-        let b0 = json["coefficients"][0]["estimate"].as_f64().expect("number");
-        let b1 = json["coefficients"][1]["estimate"].as_f64().expect("number");
+        let b0 = json["coefficients"][0]["estimate"]
+            .as_f64()
+            .expect("number");
+        let b1 = json["coefficients"][1]["estimate"]
+            .as_f64()
+            .expect("number");
         assert!((b0 - rate0.ln()).abs() < 1e-9);
         assert!((b1 - (rate1 / rate0).ln()).abs() < 1e-9);
         // SE of a log rate ratio: sqrt(1/8 + 1/21) (common practice).
-        let se1 = json["coefficients"][1]["std_error"].as_f64().expect("number");
+        let se1 = json["coefficients"][1]["std_error"]
+            .as_f64()
+            .expect("number");
         assert!((se1 - (1.0 / 8.0 + 1.0 / 21.0_f64).sqrt()).abs() < 1e-9);
         assert!(json.get("theta").is_none());
     }
