@@ -38,12 +38,12 @@ mod predictive;
 mod special;
 mod table;
 
-pub use choice::{FamilyChoice, FamilyRequest, fit};
+pub use choice::{AUTO_TEST_LEVEL, FamilyChoice, FamilyRequest, fit};
 pub use data::{GlmData, GlmSpec};
 pub use fitted::{Coefficient, FittedGlm, ThetaEstimate};
 pub use predictive::{
-    CountDistribution, ParameterDraw, PmfMixture, PredictiveDistribution, TruncatedPmf, negbin_pmf,
-    poisson_pmf,
+    CountDistribution, ParameterDraw, PmfMixture, PredictiveDistribution, TRUNCATION_NOTE_MASS,
+    TruncatedPmf, negbin_pmf, poisson_pmf,
 };
 pub use table::{ColumnSpec, OffsetColumn, TableError, read_table};
 
