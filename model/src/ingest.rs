@@ -432,9 +432,10 @@ fn parse_rows(
     let mut line_number = 0u64;
     let mut columns: Option<usize> = None;
     let mut at_eof = false;
-    let parser = RowParser {
+    let mut parser = RowParser {
         options,
         source_name,
+        dates: DateCache::default(),
     };
     while !at_eof {
         if filled == buffer.len() {
@@ -458,7 +459,7 @@ fn parse_rows(
         let mut start = 0;
         loop {
             let rest = &buffer[start..filled];
-            let (line, next) = match rest.iter().position(|&b| b == b'\n') {
+            let (line, next) = match find_newline(rest) {
                 Some(end) => (&rest[..end], start + end + 1),
                 None if at_eof && !rest.is_empty() => (rest, filled),
                 None => break,
@@ -466,7 +467,9 @@ fn parse_rows(
             start = next;
             line_number += 1;
             let line = line.strip_suffix(b"\r").unwrap_or(line);
-            if line.iter().all(u8::is_ascii_whitespace) {
+            let blank = line.first().is_none_or(u8::is_ascii_whitespace)
+                && line.iter().all(u8::is_ascii_whitespace);
+            if blank {
                 continue;
             }
             match columns {
@@ -485,9 +488,45 @@ fn parse_rows(
     Ok(())
 }
 
+/// Finds the first `\n`, eight bytes at a time: a word XOR the pattern has a zero byte where
+/// the newline is, and `(x - 0x01..) & !x & 0x80..` flags the lowest zero byte exactly (higher
+/// flags may be false positives from the borrow, so the lowest set bit is the answer).
+#[inline]
+fn find_newline(bytes: &[u8]) -> Option<usize> {
+    const LOW: u64 = 0x0101_0101_0101_0101;
+    const HIGH: u64 = 0x8080_8080_8080_8080;
+    const PATTERN: u64 = LOW * b'\n' as u64;
+    let mut chunks = bytes.chunks_exact(8);
+    let mut offset = 0;
+    for chunk in &mut chunks {
+        let word = u64::from_le_bytes(chunk.try_into().expect("chunks_exact yields 8 bytes"));
+        let x = word ^ PATTERN;
+        let found = x.wrapping_sub(LOW) & !x & HIGH;
+        if found != 0 {
+            return Some(offset + (found.trailing_zeros() / 8) as usize);
+        }
+        offset += 8;
+    }
+    chunks
+        .remainder()
+        .iter()
+        .position(|&b| b == b'\n')
+        .map(|p| offset + p)
+}
+
+/// The last `YYYY-MM-DD` prefix seen and its day count, so consecutive rows of the same day
+/// skip the calendar arithmetic.
+#[derive(Debug, Default)]
+struct DateCache {
+    prefix: [u8; 10],
+    days: i64,
+    valid: bool,
+}
+
 struct RowParser<'a> {
     options: &'a IngestOptions,
     source_name: &'a str,
+    dates: DateCache,
 }
 
 impl RowParser<'_> {
@@ -526,7 +565,7 @@ impl RowParser<'_> {
     }
 
     #[inline]
-    fn row(&self, line: &[u8], line_number: u64, columns: usize) -> Result<Row, IngestError> {
+    fn row(&mut self, line: &[u8], line_number: u64, columns: usize) -> Result<Row, IngestError> {
         let Some(comma) = line.iter().position(|&b| b == b',') else {
             return Err(self.malformed(
                 line_number,
@@ -549,7 +588,7 @@ impl RowParser<'_> {
             }
             None => rest,
         };
-        let time = parse_time(time_field).ok_or_else(|| {
+        let time = parse_time_cached(time_field, &mut self.dates).ok_or_else(|| {
             self.malformed(
                 line_number,
                 "time",
@@ -661,9 +700,13 @@ fn parse_decimal_fast(field: &[u8]) -> Option<f64> {
 /// Reads an ISO 8601 time with `Z` or an offset as Unix seconds (fractions rounded to the
 /// nearest second). The common shapes `YYYY-MM-DDTHH:MM[:SS](Z|±HH:MM|±HHMM|±HH)` are
 /// computed directly; anything else goes to chrono's RFC 3339 parser.
-#[inline]
 pub fn parse_time(field: &[u8]) -> Option<i64> {
-    parse_time_fast(field).or_else(|| {
+    parse_time_cached(field, &mut DateCache::default())
+}
+
+#[inline]
+fn parse_time_cached(field: &[u8], dates: &mut DateCache) -> Option<i64> {
+    parse_time_fast(field, dates).or_else(|| {
         let text = std::str::from_utf8(field).ok()?;
         let t = DateTime::parse_from_rfc3339(text).ok()?;
         let round_up = t.timestamp_subsec_nanos() >= 500_000_000;
@@ -671,7 +714,7 @@ pub fn parse_time(field: &[u8]) -> Option<i64> {
     })
 }
 
-#[inline]
+#[inline(always)]
 fn digits2(b: &[u8], at: usize) -> Option<u32> {
     let (h, l) = (*b.get(at)?, *b.get(at + 1)?);
     (h.is_ascii_digit() && l.is_ascii_digit())
@@ -679,28 +722,34 @@ fn digits2(b: &[u8], at: usize) -> Option<u32> {
 }
 
 #[inline]
-fn parse_time_fast(b: &[u8]) -> Option<i64> {
-    if b.len() < 17 || b[4] != b'-' || b[7] != b'-' || !matches!(b[10], b'T' | b't' | b' ') {
+fn parse_time_fast(b: &[u8], dates: &mut DateCache) -> Option<i64> {
+    if b.len() < 17 || !matches!(b[10], b'T' | b't' | b' ') || b[13] != b':' {
         return None;
     }
-    if b[13] != b':' {
-        return None;
-    }
-    let year = digits2(b, 0)? * 100 + digits2(b, 2)?;
-    let (month, day) = (digits2(b, 5)?, digits2(b, 8)?);
+    let days = if dates.valid && b[..10] == dates.prefix {
+        dates.days
+    } else {
+        if b[4] != b'-' || b[7] != b'-' {
+            return None;
+        }
+        let year = digits2(b, 0)? * 100 + digits2(b, 2)?;
+        let (month, day) = (digits2(b, 5)?, digits2(b, 8)?);
+        if !(1..=12).contains(&month) || day < 1 || day > days_in_month(year as i32, month) {
+            return None;
+        }
+        let days = days_from_civil(year as i32, month, day);
+        dates.prefix.copy_from_slice(&b[..10]);
+        dates.days = days;
+        dates.valid = true;
+        days
+    };
     let (hour, minute) = (digits2(b, 11)?, digits2(b, 14)?);
     let (second, zone) = if b[16] == b':' {
         (digits2(b, 17)?, &b[19..])
     } else {
         (0, &b[16..])
     };
-    if !(1..=12).contains(&month)
-        || day < 1
-        || day > days_in_month(year as i32, month)
-        || hour > 23
-        || minute > 59
-        || second > 59
-    {
+    if hour > 23 || minute > 59 || second > 59 {
         return None;
     }
     let offset_s = match zone {
@@ -721,7 +770,6 @@ fn parse_time_fast(b: &[u8]) -> Option<i64> {
         }
         _ => return None,
     };
-    let days = days_from_civil(year as i32, month, day);
     Some(days * SECONDS_PER_DAY + i64::from(hour * 3600 + minute * 60 + second) - offset_s)
 }
 
@@ -787,7 +835,11 @@ mod tests {
         ];
         for case in cases {
             let expected = DateTime::parse_from_rfc3339(case).unwrap().timestamp();
-            assert_eq!(parse_time_fast(case.as_bytes()), Some(expected), "{case}");
+            assert_eq!(
+                parse_time_fast(case.as_bytes(), &mut DateCache::default()),
+                Some(expected),
+                "{case}"
+            );
         }
         // Shapes outside RFC 3339 that the fast path reads.
         let t = parse_time(b"2026-01-05T08:00-0500").unwrap();
@@ -800,6 +852,31 @@ mod tests {
         assert_eq!(parse_time(b"2026-01-05T13:00+00"), Some(t));
         // Fractions go through chrono and round to the nearest second.
         assert_eq!(parse_time(b"2026-01-05T12:59:59.6Z"), Some(t));
+    }
+
+    #[test]
+    fn newline_finder_agrees_with_a_byte_scan() {
+        let text = b"abc\ndefghijklmnop\n\nqrstuvwxyz0123456789\xff\x8a\n\x0b";
+        for start in 0..text.len() {
+            let rest = &text[start..];
+            assert_eq!(
+                find_newline(rest),
+                rest.iter().position(|&b| b == b'\n'),
+                "{start}"
+            );
+        }
+    }
+
+    #[test]
+    fn date_cache_does_not_leak_between_days() {
+        let mut cache = DateCache::default();
+        let a = parse_time_fast(b"2026-01-05T13:00:00Z", &mut cache).unwrap();
+        let b = parse_time_fast(b"2026-01-05T14:00:00Z", &mut cache).unwrap();
+        let c = parse_time_fast(b"2026-01-06T13:00:00Z", &mut cache).unwrap();
+        assert_eq!((b - a, c - a), (3600, 86_400));
+        // A bad date after a cached good one is still rejected.
+        assert_eq!(parse_time_fast(b"2026-02-30T13:00:00Z", &mut cache), None);
+        assert_eq!(parse_time_fast(b"2026-01-06X13:00:00Z", &mut cache), None);
     }
 
     #[test]
