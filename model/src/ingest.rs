@@ -333,7 +333,18 @@ struct DuplicateChecker {
 }
 
 impl DuplicateChecker {
+    #[inline]
     fn push(&mut self, time: i64, line: u64, source_name: &str) -> Result<(), IngestError> {
+        // Hot path: the row continues the current run.
+        if let Some(run) = self.runs.last_mut()
+            && self.tail.is_empty()
+            && run.count > 1
+            && time == run.last_time() + run.step
+            && line == run.first_line + run.count
+        {
+            run.count += 1;
+            return Ok(());
+        }
         if !self.tail.is_empty() {
             self.tail.push((time, line));
             return Ok(());
@@ -493,14 +504,20 @@ fn parse_rows(
 /// flags may be false positives from the borrow, so the lowest set bit is the answer).
 #[inline]
 fn find_newline(bytes: &[u8]) -> Option<usize> {
+    find_byte::<b'\n'>(bytes)
+}
+
+/// The first `BYTE` in `bytes`, eight bytes at a time (see [`find_newline`]).
+#[inline]
+fn find_byte<const BYTE: u8>(bytes: &[u8]) -> Option<usize> {
     const LOW: u64 = 0x0101_0101_0101_0101;
     const HIGH: u64 = 0x8080_8080_8080_8080;
-    const PATTERN: u64 = LOW * b'\n' as u64;
+    let pattern: u64 = LOW * u64::from(BYTE);
     let mut chunks = bytes.chunks_exact(8);
     let mut offset = 0;
     for chunk in &mut chunks {
         let word = u64::from_le_bytes(chunk.try_into().expect("chunks_exact yields 8 bytes"));
-        let x = word ^ PATTERN;
+        let x = word ^ pattern;
         let found = x.wrapping_sub(LOW) & !x & HIGH;
         if found != 0 {
             return Some(offset + (found.trailing_zeros() / 8) as usize);
@@ -510,7 +527,7 @@ fn find_newline(bytes: &[u8]) -> Option<usize> {
     chunks
         .remainder()
         .iter()
-        .position(|&b| b == b'\n')
+        .position(|&b| b == BYTE)
         .map(|p| offset + p)
 }
 
@@ -518,9 +535,18 @@ fn find_newline(bytes: &[u8]) -> Option<usize> {
 /// skip the calendar arithmetic.
 #[derive(Debug, Default)]
 struct DateCache {
-    prefix: [u8; 10],
+    /// Bytes 0..8 and 8..10 of the prefix, compared as integers.
+    prefix: (u64, u16),
     days: i64,
     valid: bool,
+}
+
+/// The first ten bytes as (u64, u16); the caller ensures at least ten bytes.
+#[inline(always)]
+fn date_key(b: &[u8]) -> (u64, u16) {
+    let head: [u8; 8] = b[..8].try_into().expect("at least ten bytes");
+    let tail: [u8; 2] = b[8..10].try_into().expect("at least ten bytes");
+    (u64::from_le_bytes(head), u16::from_le_bytes(tail))
 }
 
 struct RowParser<'a> {
@@ -566,7 +592,7 @@ impl RowParser<'_> {
 
     #[inline]
     fn row(&mut self, line: &[u8], line_number: u64, columns: usize) -> Result<Row, IngestError> {
-        let Some(comma) = line.iter().position(|&b| b == b',') else {
+        let Some(comma) = find_byte::<b','>(line) else {
             return Err(self.malformed(
                 line_number,
                 "row",
@@ -576,7 +602,7 @@ impl RowParser<'_> {
         };
         let time_field = unquote(&line[..comma]);
         let rest = &line[comma + 1..];
-        let level_field = match rest.iter().position(|&b| b == b',') {
+        let level_field = match find_byte::<b','>(rest) {
             Some(second) if columns == 3 && !rest[second + 1..].contains(&b',') => &rest[..second],
             Some(_) => {
                 let expected = if columns == 3 {
@@ -627,6 +653,7 @@ impl RowParser<'_> {
 }
 
 /// Trims ASCII spaces and one pair of surrounding double quotes.
+#[inline]
 fn unquote(field: &[u8]) -> &[u8] {
     let field = field.trim_ascii();
     field
@@ -726,7 +753,8 @@ fn parse_time_fast(b: &[u8], dates: &mut DateCache) -> Option<i64> {
     if b.len() < 17 || !matches!(b[10], b'T' | b't' | b' ') || b[13] != b':' {
         return None;
     }
-    let days = if dates.valid && b[..10] == dates.prefix {
+    let key = date_key(b);
+    let days = if dates.valid && key == dates.prefix {
         dates.days
     } else {
         if b[4] != b'-' || b[7] != b'-' {
@@ -738,7 +766,7 @@ fn parse_time_fast(b: &[u8], dates: &mut DateCache) -> Option<i64> {
             return None;
         }
         let days = days_from_civil(year as i32, month, day);
-        dates.prefix.copy_from_slice(&b[..10]);
+        dates.prefix = key;
         dates.days = days;
         dates.valid = true;
         days
