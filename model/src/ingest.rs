@@ -8,8 +8,13 @@
 //! - [`read_levels`]: every reading, sorted by time, for tidal analysis.
 //!
 //! Times are ISO 8601 with `Z` or an offset; levels are converted from the declared units to
-//! metres. Empty fields, `NaN` (any case) and the configured sentinel mean "missing".
-//! Duplicate times are an error naming both lines.
+//! metres. Empty fields, `NaN` (any case) and the configured sentinel mean "missing". The
+//! optional `flag` column is accepted and not interpreted. Duplicate times are an error naming
+//! both lines. Times outside the years 1800 to 2200 are taken for typing errors and rejected.
+//!
+//! Speed: common time shapes are computed arithmetically (chrono handles the rest), plain
+//! decimals take an exact fast path (the standard parser handles the rest), and lines are
+//! split in place in a reused buffer; see `model/benches/ingest.rs`.
 
 use std::collections::BTreeMap;
 use std::io::{BufRead, Read};
@@ -226,48 +231,74 @@ pub fn summarize(
     options: &IngestOptions,
     source_name: &str,
 ) -> Result<LevelSummary, IngestError> {
-    let offset = i64::from(options.utc_offset.local_minus_utc());
-    let mut days = DayTotals::default();
-    let mut checker = DuplicateChecker::default();
-    let mut spacings: BTreeMap<i64, u64> = BTreeMap::new();
-    // The current streak of equal spacings, flushed into `spacings` when the spacing changes.
-    let (mut streak_gap, mut streak_len) = (0i64, 0u64);
-    let mut previous: Option<i64> = None;
-    let (mut rows, mut readings) = (0u64, 0u64);
-    for_each_row(reader, options, source_name, |row| {
-        checker.push(row.time, row.line, source_name)?;
-        if let Some(prev) = previous {
+    let mut pass = SummaryPass {
+        offset: i64::from(options.utc_offset.local_minus_utc()),
+        source_name,
+        ..SummaryPass::default()
+    };
+    for_each_row(reader, options, source_name, |row| pass.accept(row))?;
+    pass.finish()
+}
+
+/// The state of the streaming pass.
+#[derive(Default)]
+struct SummaryPass<'a> {
+    offset: i64,
+    source_name: &'a str,
+    days: DayTotals,
+    checker: DuplicateChecker,
+    spacings: BTreeMap<i64, u64>,
+    /// The current streak of equal spacings, flushed into `spacings` when the spacing
+    /// changes.
+    streak_gap: i64,
+    streak_len: u64,
+    previous: Option<i64>,
+    rows: u64,
+    readings: u64,
+}
+
+impl SummaryPass<'_> {
+    #[inline(always)]
+    fn accept(&mut self, row: Row) -> Result<(), IngestError> {
+        self.checker.push(row.time, row.line, self.source_name)?;
+        if let Some(prev) = self.previous {
             let gap = (row.time - prev).abs();
-            if gap != streak_gap {
-                if streak_len > 0 && streak_gap > 0 {
-                    *spacings.entry(streak_gap).or_insert(0) += streak_len;
-                }
-                (streak_gap, streak_len) = (gap, 0);
+            if gap != self.streak_gap {
+                self.flush_streak();
+                (self.streak_gap, self.streak_len) = (gap, 0);
             }
-            streak_len += 1;
+            self.streak_len += 1;
         }
-        previous = Some(row.time);
-        rows += 1;
+        self.previous = Some(row.time);
+        self.rows += 1;
         if let Some(level) = row.level_m {
-            readings += 1;
-            days.add((row.time + offset).div_euclid(SECONDS_PER_DAY), level);
+            self.readings += 1;
+            self.days
+                .add((row.time + self.offset).div_euclid(SECONDS_PER_DAY), level);
         }
         Ok(())
-    })?;
-    if streak_len > 0 && streak_gap > 0 {
-        *spacings.entry(streak_gap).or_insert(0) += streak_len;
     }
-    let was_sorted = checker.tail.is_empty();
-    checker.finish(source_name)?;
-    Ok(LevelSummary {
-        monthly: days.monthly_means(),
-        days,
-        sampling_interval_s: weighted_median(&spacings),
-        rows,
-        readings,
-        missing: rows - readings,
-        was_sorted,
-    })
+
+    fn flush_streak(&mut self) {
+        if self.streak_len > 0 && self.streak_gap > 0 {
+            *self.spacings.entry(self.streak_gap).or_insert(0) += self.streak_len;
+        }
+    }
+
+    fn finish(mut self) -> Result<LevelSummary, IngestError> {
+        self.flush_streak();
+        let was_sorted = self.checker.tail.is_empty();
+        self.checker.finish(self.source_name)?;
+        Ok(LevelSummary {
+            monthly: self.days.monthly_means(),
+            days: self.days,
+            sampling_interval_s: weighted_median(&self.spacings),
+            rows: self.rows,
+            readings: self.readings,
+            missing: self.rows - self.readings,
+            was_sorted,
+        })
+    }
 }
 
 /// The median of a histogram of spacings (the lower median for an even count).
@@ -590,7 +621,7 @@ impl RowParser<'_> {
         }
     }
 
-    #[inline]
+    #[inline(always)]
     fn row(&mut self, line: &[u8], line_number: u64, columns: usize) -> Result<Row, IngestError> {
         let Some(comma) = find_byte::<b','>(line) else {
             return Err(self.malformed(
@@ -669,7 +700,7 @@ enum Level {
 }
 
 /// Reads a level: empty or `NaN` (any case) is missing; otherwise a finite number.
-#[inline]
+#[inline(always)]
 fn parse_level(field: &[u8]) -> Level {
     if field.is_empty() || field.eq_ignore_ascii_case(b"nan") {
         return Level::Missing;
@@ -701,26 +732,29 @@ fn parse_decimal_fast(field: &[u8]) -> Option<f64> {
         b'+' => (false, &field[1..]),
         _ => (false, field),
     };
+    let digit = |i: usize| digits.get(i).filter(|b| b.is_ascii_digit());
+    // Wrapping arithmetic: a mantissa of more than 15 digits is thrown away below anyway.
     let mut mantissa: u64 = 0;
-    let mut count = 0usize;
-    let mut fraction_digits = None;
-    for (i, &b) in digits.iter().enumerate() {
-        match b {
-            b'0'..=b'9' => {
-                mantissa = mantissa * 10 + u64::from(b - b'0');
-                count += 1;
-                if count > 15 {
-                    return None;
-                }
-            }
-            b'.' if fraction_digits.is_none() => fraction_digits = Some(digits.len() - i - 1),
-            _ => return None,
+    let mut i = 0;
+    while let Some(&b) = digit(i) {
+        mantissa = mantissa.wrapping_mul(10).wrapping_add(u64::from(b - b'0'));
+        i += 1;
+    }
+    let integer_digits = i;
+    let mut fraction_digits = 0;
+    if digits.get(i) == Some(&b'.') {
+        i += 1;
+        while let Some(&b) = digit(i) {
+            mantissa = mantissa.wrapping_mul(10).wrapping_add(u64::from(b - b'0'));
+            i += 1;
+            fraction_digits += 1;
         }
     }
-    if count == 0 {
+    let total = integer_digits + fraction_digits;
+    if i != digits.len() || total == 0 || total > 15 {
         return None;
     }
-    let value = mantissa as f64 / POWERS[fraction_digits.unwrap_or(0)];
+    let value = mantissa as f64 / POWERS[fraction_digits];
     Some(if negative { -value } else { value })
 }
 
@@ -942,6 +976,20 @@ mod tests {
         assert_eq!(parse_decimal_fast(b"1e3"), None);
         assert_eq!(parse_decimal_fast(b"1234567890123456"), None);
         assert_eq!(parse_decimal_fast(b"."), None);
+    }
+
+    proptest::proptest! {
+        // Reference: Rust's standard library parser, on random plain decimals.
+        #[test]
+        fn fast_decimal_path_matches_std_on_random_decimals(
+            value in -1.0e6f64..1.0e6,
+            places in 0usize..9,
+        ) {
+            let text = format!("{value:.places$}");
+            let fast = parse_decimal_fast(text.as_bytes());
+            proptest::prop_assert!(fast.is_some(), "{}", text);
+            proptest::prop_assert_eq!(fast, text.parse::<f64>().ok(), "{}", text);
+        }
     }
 
     // 1 ft = 0.3048 m exactly: international yard and pound agreement (1959).
