@@ -155,7 +155,17 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
 
 /// Prints a value as pretty JSON on stdout.
 pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
-    let text = serde_json::to_string_pretty(value)?;
-    println!("{text}");
-    Ok(())
+    let mut text = serde_json::to_string_pretty(value)?;
+    text.push('\n');
+    print_text(&text)
+}
+
+/// Writes text to stdout; a reader that closes the pipe early (`| head`) is not an error.
+pub(crate) fn print_text(text: &str) -> anyhow::Result<()> {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe => Err(err.into()),
+        _ => Ok(()),
+    }
 }
