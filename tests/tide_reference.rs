@@ -210,3 +210,113 @@ fn analysis_agrees_with_utide() {
         );
     }
 }
+
+/// A record of `hours` hourly readings of a sum of cosines (speed deg/h, amplitude, phase).
+fn cosines(hours: i64, terms: &[(f64, f64, f64)]) -> (Vec<i64>, Vec<f64>) {
+    let start = unix(2010, 1, 1, 0, 0, 0);
+    let times: Vec<i64> = (0..hours).map(|k| start + k * 3600).collect();
+    let levels = (0..hours)
+        .map(|k| {
+            terms
+                .iter()
+                .map(|(speed, a, g)| a * (speed * k as f64 - g).to_radians().cos())
+                .sum()
+        })
+        .collect();
+    (times, levels)
+}
+
+#[test]
+fn datums_of_a_pure_semidiurnal_tide() {
+    // NOS CO-OPS 1 (2000) definitions: for a pure M2 tide of amplitude A every high is a
+    // higher high, so MHHW = MHW = A, MLLW = MLW = -A, MN = GT = 2A, MSL = MTL = 0.
+    // Tolerance 2 mm: the parabola through hourly readings of a 12.42 h wave misses the
+    // crest by well under that (common practice for hourly records).
+    let a = 1.25;
+    let (times, levels) = cosines(24 * 365, &[(28.984_104_2, a, 40.0)]);
+    let d = tidetally_model::tide::DatumsParams::default()
+        .check()
+        .expect("valid")
+        .compute(&times, &levels)
+        .expect("datums");
+    check("MHW - MLW", d.mhw - d.mlw, 2.0 * a, 0.002);
+    // Equal in theory; the parabola's small, phase-dependent miss makes one of each day's
+    // two highs slightly higher, so the same 2 mm tolerance applies.
+    check("MHHW - MHW", d.mhhw - d.mhw, 0.0, 0.002);
+    check("MLW - MLLW", d.mlw - d.mllw, 0.0, 0.002);
+    check("GT", d.gt, 2.0 * a, 0.002);
+    check("MSL", d.msl, 0.0, 0.001);
+    check("MTL", d.mtl, 0.0, 0.001);
+    // About 705 tidal days in a year (365.25 * 24 / 24.84), less the partial ones at the ends.
+    assert!((700..=706).contains(&d.tidal_days), "{} tidal days", d.tidal_days);
+    assert!(d.epoch.describe().contains("record's own period"));
+}
+
+#[test]
+fn diurnal_inequality_puts_mhhw_above_mhw() {
+    // With K1 and O1 added the two daily highs differ, so the mean of the higher highs
+    // exceeds the mean of all highs, and MLLW lies below MLW (NOS CO-OPS 1, 2000).
+    let (times, levels) = cosines(
+        24 * 365,
+        &[
+            (28.984_104_2, 1.0, 0.0),
+            (15.041_068_6, 0.35, 120.0),
+            (13.943_035_6, 0.25, 60.0),
+        ],
+    );
+    let d = tidetally_model::tide::DatumsParams::default()
+        .check()
+        .expect("valid")
+        .compute(&times, &levels)
+        .expect("datums");
+    assert!(d.mhhw > d.mhw + 0.05, "MHHW {} MHW {}", d.mhhw, d.mhw);
+    assert!(d.mllw < d.mlw - 0.05, "MLLW {} MLW {}", d.mllw, d.mlw);
+    assert!(d.gt > d.mn);
+}
+
+#[test]
+fn modified_range_ratio_reproduces_the_control_when_stations_match() {
+    // NOS CO-OPS 2 (2003): MTL/DTL/MSL shift by the control's differences and MN/GT scale by
+    // its ratios. A short record identical to the control's concurrent record must come out
+    // as the control's epoch datums; one with twice the range gets twice the epoch ranges.
+    let cfg = tidetally_model::tide::DatumsParams::default().check().expect("valid");
+    let (times, levels) = cosines(24 * 60, &[(28.984_104_2, 1.0, 0.0), (15.041_068_6, 0.3, 0.0)]);
+    let concurrent = cfg.compute(&times, &levels).expect("datums");
+    let (t2, l2) = cosines(24 * 365, &[(28.984_104_2, 1.1, 0.0), (15.041_068_6, 0.3, 0.0)]);
+    let mut epoch = cfg.compute(&t2, &l2).expect("datums");
+    epoch.msl += 0.1;
+    epoch.mtl += 0.1;
+    epoch.dtl += 0.1;
+    let same = concurrent.adjust_modified_range_ratio(&concurrent, &epoch).expect("adjusts");
+    for (name, got, want) in [
+        ("MHHW", same.mhhw, epoch.mhhw + 0.1),
+        ("MLLW", same.mllw, epoch.mllw + 0.1),
+        ("MSL", same.msl, epoch.msl),
+        ("GT", same.gt, epoch.gt),
+        ("MN", same.mn, epoch.mn),
+    ] {
+        // MHHW/MLLW of the epoch record were not shifted with its DTL above, hence + 0.1.
+        check(name, got, want, 1e-9);
+    }
+    let doubled: Vec<f64> = levels.iter().map(|x| 2.0 * x).collect();
+    let short = cfg.compute(&times, &doubled).expect("datums");
+    let adjusted = short.adjust_modified_range_ratio(&concurrent, &epoch).expect("adjusts");
+    check("GT of a doubled range", adjusted.gt, 2.0 * epoch.gt, 1e-9);
+}
+
+#[test]
+fn derived_threshold_follows_sweet_2018() {
+    // Sweet et al. (2018), NOAA Technical Report NOS CO-OPS 086: minor = 0.04 GT + 0.50 m
+    // above MHHW (coefficients from memory). GT = 2 m -> 0.58 m above MHHW.
+    let (times, levels) = cosines(24 * 365, &[(28.984_104_2, 1.0, 0.0)]);
+    let d = tidetally_model::tide::DatumsParams::default()
+        .check()
+        .expect("valid")
+        .compute(&times, &levels)
+        .expect("datums");
+    let t = tidetally_model::tide::derived_minor_threshold(&d).expect("threshold");
+    check("above MHHW", t.above_mhhw_m, 0.04 * d.gt + 0.50, 1e-12);
+    check("above MHHW for GT = 2 m", t.above_mhhw_m, 0.58, 0.002);
+    check("level", t.level_m, d.mhhw + t.above_mhhw_m, 1e-12);
+    assert!(t.derived && !t.cautions.is_empty());
+}
