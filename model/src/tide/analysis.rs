@@ -469,12 +469,12 @@ impl BandNoise {
         let resolution_cpd = 24.0 / span_hours.max(1.0);
         let bands: Vec<usize> = cpd.iter().map(|f| f.round() as usize).collect();
         let mut per_constituent = vec![white; cpd.len()];
-        let mut done = vec![false; 16];
+        // Test frequencies of every band holding a constituent, evaluated in one pass.
+        let mut band_tests: Vec<(usize, Vec<f64>)> = Vec::new();
         for &band in &bands {
-            if band >= done.len() || done[band] {
+            if band_tests.iter().any(|(b, _)| *b == band) {
                 continue;
             }
-            done[band] = true;
             let tests: Vec<f64> = if band == 0 {
                 let lo = (2.0 * resolution_cpd).min(0.2);
                 let hi: f64 = 0.45;
@@ -490,19 +490,25 @@ impl BandNoise {
                     .filter(|f| cpd.iter().all(|c| (c - f).abs() > 2.0 * resolution_cpd))
                     .collect()
             };
-            if tests.len() < 3 {
-                continue;
+            if tests.len() >= 3 {
+                band_tests.push((band, tests));
             }
-            let power = periodogram(times, residuals, &tests);
+        }
+        let all: Vec<f64> = band_tests.iter().flat_map(|(_, t)| t.iter().copied()).collect();
+        let all_power = periodogram(times, residuals, &all);
+        let mut offset = 0;
+        for (band, tests) in &band_tests {
+            let power = &all_power[offset..offset + tests.len()];
+            offset += tests.len();
             for (k, &b) in bands.iter().enumerate() {
-                if b != band {
+                if b != *band {
                     continue;
                 }
-                per_constituent[k] = if band == 0 {
+                per_constituent[k] = if b == 0 {
                     // The test frequencies nearest (in log frequency) to the constituent.
                     let mut near: Vec<(f64, f64)> = tests
                         .iter()
-                        .zip(&power)
+                        .zip(power)
                         .map(|(f, pw)| ((f.ln() - cpd[k].max(1e-6).ln()).abs(), *pw))
                         .collect();
                     near.sort_by(|a, b| a.0.total_cmp(&b.0));
@@ -522,45 +528,85 @@ impl BandNoise {
 }
 
 /// Periodogram `|sum r e^{-i w t}|^2 / n` at frequencies in cycles per day (white noise of
-/// variance s2 gives s2 on average).
+/// variance s2 gives s2 on average). All frequencies advance together by rotation from
+/// sample to sample, reseeded exactly every few thousand samples and after irregular gaps.
 fn periodogram(times: &[i64], r: &[f64], freqs_cpd: &[f64]) -> Vec<f64> {
-    let n = r.len() as f64;
-    let t0 = times.first().copied().unwrap_or(0);
-    freqs_cpd
+    let nf = freqs_cpd.len();
+    let w: Vec<f64> = freqs_cpd
         .iter()
-        .map(|f| {
-            let w = 2.0 * std::f64::consts::PI * f / 86_400.0;
-            let (mut sr, mut si) = (0.0, 0.0);
-            let (mut cr, mut ci) = (1.0, 0.0);
-            let mut last: Option<i64> = None;
-            let (mut rot_r, mut rot_i, mut rot_step) = (1.0, 0.0, 0);
-            for (k, (&t, &x)) in times.iter().zip(r).enumerate() {
-                match last {
-                    Some(prev) if k % 4096 != 0 => {
-                        let step = t - prev;
-                        if step != rot_step {
-                            let (s, c) = (w * step as f64).sin_cos();
-                            rot_r = c;
-                            rot_i = s;
-                            rot_step = step;
-                        }
-                        let (a, b) = (cr, ci);
-                        cr = a * rot_r - b * rot_i;
-                        ci = a * rot_i + b * rot_r;
-                    }
-                    _ => {
-                        let (s, c) = (w * (t - t0) as f64).sin_cos();
-                        cr = c;
-                        ci = s;
-                    }
+        .map(|f| 2.0 * std::f64::consts::PI * f / 86_400.0)
+        .collect();
+    let (mut sr, mut si) = (vec![0.0; nf], vec![0.0; nf]);
+    let (mut cr, mut ci) = (vec![0.0; nf], vec![0.0; nf]);
+    let (mut rr, mut ri) = (vec![1.0; nf], vec![0.0; nf]);
+    let mut base_step = 0i64;
+    let t0 = times.first().copied().unwrap_or(0);
+    let mut last = t0;
+    for (k, (&t, &x)) in times.iter().zip(r).enumerate() {
+        let step = t - last;
+        let rotations = if base_step > 0 && step % base_step == 0 { step / base_step } else { 0 };
+        if k % 4096 == 0 || !(1..=16).contains(&rotations) {
+            if k > 0 && base_step == 0 {
+                base_step = step.max(1);
+                for j in 0..nf {
+                    let (s, c) = (w[j] * base_step as f64).sin_cos();
+                    rr[j] = c;
+                    ri[j] = s;
                 }
-                last = Some(t);
-                sr += x * cr;
-                si += x * ci;
             }
-            (sr * sr + si * si) / n
-        })
-        .collect()
+            for j in 0..nf {
+                let (s, c) = (w[j] * (t - t0) as f64).sin_cos();
+                cr[j] = c;
+                ci[j] = s;
+            }
+        } else {
+            for _ in 0..rotations - 1 {
+                rotate_all(&mut cr, &mut ci, &rr, &ri);
+            }
+            rotate_accumulate(&mut cr, &mut ci, &rr, &ri, &mut sr, &mut si, x);
+            last = t;
+            continue;
+        }
+        last = t;
+        for j in 0..nf {
+            sr[j] += x * cr[j];
+            si[j] += x * ci[j];
+        }
+    }
+    let n = r.len() as f64;
+    sr.iter().zip(&si).map(|(a, b)| (a * a + b * b) / n).collect()
+}
+
+fn rotate_all(cr: &mut [f64], ci: &mut [f64], rr: &[f64], ri: &[f64]) {
+    let n = cr.len();
+    let (ci, rr, ri) = (&mut ci[..n], &rr[..n], &ri[..n]);
+    for j in 0..n {
+        let (a, b) = (cr[j], ci[j]);
+        cr[j] = a * rr[j] - b * ri[j];
+        ci[j] = a * ri[j] + b * rr[j];
+    }
+}
+
+/// One rotation of every phasor, then `s += x * phasor`, fused so it vectorises.
+fn rotate_accumulate(
+    cr: &mut [f64],
+    ci: &mut [f64],
+    rr: &[f64],
+    ri: &[f64],
+    sr: &mut [f64],
+    si: &mut [f64],
+    x: f64,
+) {
+    let n = cr.len();
+    let (ci, rr, ri, sr, si) = (&mut ci[..n], &rr[..n], &ri[..n], &mut sr[..n], &mut si[..n]);
+    for j in 0..n {
+        let (a, b) = (cr[j], ci[j]);
+        let (na, nb) = (a * rr[j] - b * ri[j], a * ri[j] + b * rr[j]);
+        cr[j] = na;
+        ci[j] = nb;
+        sr[j] += x * na;
+        si[j] += x * nb;
+    }
 }
 
 #[cfg(test)]
