@@ -75,7 +75,9 @@ fn constituent_speeds_and_doodson_numbers_match_schureman() {
         ("Q1", 13.398_660_9, "135.655"),
         ("M4", 57.968_208_4, "455.555"),
         ("MS4", 58.984_104_2, "473.555"),
-        ("Sa", 0.041_068_6, "056.555"),
+        // Sa as h - p1 (Doodson 1921, the IHO list, Foreman 1977): 0.0410667 deg/h;
+        // Schureman's Table 2 gives h alone, 0.0410686.
+        ("Sa", 0.041_066_7, "056.554"),
         ("Ssa", 0.082_137_3, "057.555"),
     ];
     for (name, speed, doodson) in table {
