@@ -44,7 +44,11 @@ fn read_levels(name: &str) -> (Vec<i64>, Vec<f64>) {
     for line in text.lines().skip(1) {
         let (t, x) = line.split_once(',').expect("two columns");
         times.push(parse_utc(t));
-        levels.push(if x.is_empty() { f64::NAN } else { x.parse().expect("a number") });
+        levels.push(if x.is_empty() {
+            f64::NAN
+        } else {
+            x.parse().expect("a number")
+        });
     }
     (times, levels)
 }
@@ -83,7 +87,12 @@ fn constituent_speeds_and_doodson_numbers_match_schureman() {
     for (name, speed, doodson) in table {
         let c = by_name(name).expect("in the standard table");
         // 1e-7 deg/h: the table's last digit (rounding contributes up to 5e-8).
-        check(&format!("{name} speed"), c.speed_deg_per_hour(), speed, 1e-7);
+        check(
+            &format!("{name} speed"),
+            c.speed_deg_per_hour(),
+            speed,
+            1e-7,
+        );
         assert_eq!(c.doodson_number(), doodson, "{name} Doodson number");
     }
 }
@@ -116,7 +125,11 @@ fn nodal_factors_at_node_extremes_match_schureman() {
     let at_zero = NodalAngles::new(0.0, 0.0);
     let at_180 = NodalAngles::new(180.0, 0.0);
     let f = |a: &NodalAngles, n: &str| a.factor(by_name(n).expect("known"));
-    for (name, f0, f180) in [("M2", 0.963, 1.038), ("K1", 1.113, 0.882), ("O1", 1.183, 0.806)] {
+    for (name, f0, f180) in [
+        ("M2", 0.963, 1.038),
+        ("K1", 1.113, 0.882),
+        ("O1", 1.183, 0.806),
+    ] {
         let (fz, uz) = f(&at_zero, name);
         let (fh, uh) = f(&at_180, name);
         check(&format!("f({name}) at N=0"), fz, f0, 0.0015);
@@ -165,8 +178,17 @@ fn analysis_agrees_with_utide() {
         constituents: Some(names.clone()),
         ..AnalysisParams::default()
     };
-    let model: TideModel = params.check().expect("valid").fit(&times, &levels).expect("fits");
-    check("mean", model.mean, reference["mean"].as_f64().expect("mean"), 5e-4);
+    let model: TideModel = params
+        .check()
+        .expect("valid")
+        .fit(&times, &levels)
+        .expect("fits");
+    check(
+        "mean",
+        model.mean,
+        reference["mean"].as_f64().expect("mean"),
+        5e-4,
+    );
     // utide (like the t_tide lineage it follows) applies no nodal correction to Mm and Mf:
     // its amplitude is our f * A and its phase our g - u, taken at the record's middle.
     let middle = NodalAngles::at(&Astro::at(model.reference_time as f64));
@@ -250,7 +272,11 @@ fn datums_of_a_pure_semidiurnal_tide() {
     check("MSL", d.msl, 0.0, 0.001);
     check("MTL", d.mtl, 0.0, 0.001);
     // About 352 tidal days in 365 days (365 * 24 / 24.8412), less a partial one at the end.
-    assert!((350..=353).contains(&d.tidal_days), "{} tidal days", d.tidal_days);
+    assert!(
+        (350..=353).contains(&d.tidal_days),
+        "{} tidal days",
+        d.tidal_days
+    );
     assert!(d.epoch.describe().contains("record's own period"));
 }
 
@@ -281,15 +307,25 @@ fn modified_range_ratio_reproduces_the_control_when_stations_match() {
     // NOS CO-OPS 2 (2003): MTL/DTL/MSL shift by the control's differences and MN/GT scale by
     // its ratios. A short record identical to the control's concurrent record must come out
     // as the control's epoch datums; one with twice the range gets twice the epoch ranges.
-    let cfg = tidetally_model::tide::DatumsParams::default().check().expect("valid");
-    let (times, levels) = cosines(24 * 60, &[(28.984_104_2, 1.0, 0.0), (15.041_068_6, 0.3, 0.0)]);
+    let cfg = tidetally_model::tide::DatumsParams::default()
+        .check()
+        .expect("valid");
+    let (times, levels) = cosines(
+        24 * 60,
+        &[(28.984_104_2, 1.0, 0.0), (15.041_068_6, 0.3, 0.0)],
+    );
     let concurrent = cfg.compute(&times, &levels).expect("datums");
-    let (t2, l2) = cosines(24 * 365, &[(28.984_104_2, 1.1, 0.0), (15.041_068_6, 0.3, 0.0)]);
+    let (t2, l2) = cosines(
+        24 * 365,
+        &[(28.984_104_2, 1.1, 0.0), (15.041_068_6, 0.3, 0.0)],
+    );
     let mut epoch = cfg.compute(&t2, &l2).expect("datums");
     epoch.msl += 0.1;
     epoch.mtl += 0.1;
     epoch.dtl += 0.1;
-    let same = concurrent.adjust_modified_range_ratio(&concurrent, &epoch).expect("adjusts");
+    let same = concurrent
+        .adjust_modified_range_ratio(&concurrent, &epoch)
+        .expect("adjusts");
     for (name, got, want) in [
         ("MHHW", same.mhhw, epoch.mhhw + 0.1),
         ("MLLW", same.mllw, epoch.mllw + 0.1),
@@ -302,7 +338,9 @@ fn modified_range_ratio_reproduces_the_control_when_stations_match() {
     }
     let doubled: Vec<f64> = levels.iter().map(|x| 2.0 * x).collect();
     let short = cfg.compute(&times, &doubled).expect("datums");
-    let adjusted = short.adjust_modified_range_ratio(&concurrent, &epoch).expect("adjusts");
+    let adjusted = short
+        .adjust_modified_range_ratio(&concurrent, &epoch)
+        .expect("adjusts");
     check("GT of a doubled range", adjusted.gt, 2.0 * epoch.gt, 1e-9);
 }
 

@@ -1,5 +1,6 @@
 //! Benchmarks of the tide module: harmonic analysis of 20 years of hourly levels with the
 //! Rayleigh-selected standard set, and one year of hourly prediction with all constituents.
+#![allow(missing_docs)] // criterion's macros generate undocumented items
 
 use criterion::{Criterion, black_box, criterion_group, criterion_main};
 use tidetally_model::tide::{AnalysisParams, ConstituentValue, STANDARD, TideModel};
@@ -36,7 +37,11 @@ fn bench_analysis(c: &mut Criterion) {
     let mut group = c.benchmark_group("tide");
     group.sample_size(10);
     group.bench_function(format!("analyze 20 years hourly, {n} constituents"), |b| {
-        b.iter(|| config.fit(black_box(&times), black_box(&levels)).expect("fits"))
+        b.iter(|| {
+            config
+                .fit(black_box(&times), black_box(&levels))
+                .expect("fits")
+        })
     });
     group.finish();
 }

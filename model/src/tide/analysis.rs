@@ -107,7 +107,9 @@ impl AnalysisConfig {
     /// Fits the model to `levels` (NaN = missing) at strictly increasing unix `times`.
     pub fn fit(&self, times: &[i64], levels: &[f64]) -> Result<TideModel, TideError> {
         check_series(times, levels)?;
-        let present: Vec<usize> = (0..times.len()).filter(|&i| levels[i].is_finite()).collect();
+        let present: Vec<usize> = (0..times.len())
+            .filter(|&i| levels[i].is_finite())
+            .collect();
         let (Some(&first_i), Some(&last_i)) = (present.first(), present.last()) else {
             return Err(TideError::TooFewSamples {
                 samples: 0,
@@ -158,9 +160,7 @@ impl AnalysisConfig {
                 end += 1;
             }
             let members = &present[cursor..end];
-            let on_grid = members
-                .iter()
-                .all(|&i| (times[i] - seg_start) % step == 0);
+            let on_grid = members.iter().all(|&i| (times[i] - seg_start) % step == 0);
             seg_rhs.iter_mut().for_each(|v| *v = 0.0);
             if on_grid {
                 filled.iter_mut().for_each(|v| *v = false);
@@ -198,7 +198,15 @@ impl AnalysisConfig {
             }
             mirror_upper(&mut seg_gram, p);
             let rows = layout.rotation(&cons, seg_start, segment, reference_time);
-            rotate_into(&mut normal, &mut rhs, &seg_gram, &seg_rhs, &rows, &mut scratch, p);
+            rotate_into(
+                &mut normal,
+                &mut rhs,
+                &seg_gram,
+                &seg_rhs,
+                &rows,
+                &mut scratch,
+                p,
+            );
             cursor = end;
         }
 
@@ -494,7 +502,10 @@ impl BandNoise {
                 band_tests.push((band, tests));
             }
         }
-        let all: Vec<f64> = band_tests.iter().flat_map(|(_, t)| t.iter().copied()).collect();
+        let all: Vec<f64> = band_tests
+            .iter()
+            .flat_map(|(_, t)| t.iter().copied())
+            .collect();
         let all_power = periodogram(times, residuals, &all);
         let mut offset = 0;
         for (band, tests) in &band_tests {
@@ -512,7 +523,10 @@ impl BandNoise {
                         .map(|(f, pw)| ((f.ln() - cpd[k].max(1e-6).ln()).abs(), *pw))
                         .collect();
                     near.sort_by(|a, b| a.0.total_cmp(&b.0));
-                    near.iter().take(LONG_PERIOD_NEAREST).map(|x| x.1).sum::<f64>()
+                    near.iter()
+                        .take(LONG_PERIOD_NEAREST)
+                        .map(|x| x.1)
+                        .sum::<f64>()
                         / LONG_PERIOD_NEAREST as f64
                 } else {
                     power.iter().sum::<f64>() / power.len() as f64
@@ -544,7 +558,11 @@ fn periodogram(times: &[i64], r: &[f64], freqs_cpd: &[f64]) -> Vec<f64> {
     let mut last = t0;
     for (k, (&t, &x)) in times.iter().zip(r).enumerate() {
         let step = t - last;
-        let rotations = if base_step > 0 && step % base_step == 0 { step / base_step } else { 0 };
+        let rotations = if base_step > 0 && step % base_step == 0 {
+            step / base_step
+        } else {
+            0
+        };
         if k % 4096 == 0 || !(1..=16).contains(&rotations) {
             if k > 0 && base_step == 0 {
                 base_step = step.max(1);
@@ -574,7 +592,10 @@ fn periodogram(times: &[i64], r: &[f64], freqs_cpd: &[f64]) -> Vec<f64> {
         }
     }
     let n = r.len() as f64;
-    sr.iter().zip(&si).map(|(a, b)| (a * a + b * b) / n).collect()
+    sr.iter()
+        .zip(&si)
+        .map(|(a, b)| (a * a + b * b) / n)
+        .collect()
 }
 
 fn rotate_all(cr: &mut [f64], ci: &mut [f64], rr: &[f64], ri: &[f64]) {
@@ -651,15 +672,31 @@ mod tests {
         for l in levels.iter_mut().skip(3000).take(500) {
             *l = f64::NAN;
         }
-        let model = AnalysisParams::default().check().expect("valid").fit(&times, &levels).expect("fits");
+        let model = AnalysisParams::default()
+            .check()
+            .expect("valid")
+            .fit(&times, &levels)
+            .expect("fits");
         assert!((model.mean - 1.5).abs() < 0.002, "mean {}", model.mean);
         for (name, amp, phase) in truth {
             let c = model.constituent(name).expect("selected");
-            assert!((c.amplitude - amp).abs() < 0.002, "{name} amp {}", c.amplitude);
+            assert!(
+                (c.amplitude - amp).abs() < 0.002,
+                "{name} amp {}",
+                c.amplitude
+            );
             let dphase = ((c.phase_deg - phase + 540.0) % 360.0 - 180.0).abs();
             assert!(dphase < 1.0, "{name} phase {}", c.phase_deg);
-            assert!(c.amplitude_ci95 > 0.0 && c.amplitude_ci95 < 0.01, "{name} ci {}", c.amplitude_ci95);
+            assert!(
+                c.amplitude_ci95 > 0.0 && c.amplitude_ci95 < 0.01,
+                "{name} ci {}",
+                c.amplitude_ci95
+            );
         }
-        assert!(model.constituents.len() >= 37, "{}", model.constituents.len());
+        assert!(
+            model.constituents.len() >= 37,
+            "{}",
+            model.constituents.len()
+        );
     }
 }

@@ -217,7 +217,10 @@ impl NodalAngles {
                 let t2 = (i / 2.0).tan().powi(2);
                 let two_p = rad(2.0 * self.big_p);
                 let inv_ra = (1.0 - 12.0 * t2 * two_p.cos() + 36.0 * t2 * t2).sqrt();
-                let r = two_p.sin().atan2(1.0 / (6.0 * t2) - two_p.cos()).to_degrees();
+                let r = two_p
+                    .sin()
+                    .atan2(1.0 / (6.0 * t2) - two_p.cos())
+                    .to_degrees();
                 (m2_f * inv_ra, m2_u - r)
             }
             NodalBasis::M3 => ((i / 2.0).cos().powi(6) / 0.8758, 3.0 * xi - 3.0 * nu),

@@ -204,7 +204,7 @@ pub fn by_name(name: &str) -> Option<&'static Constituent> {
 /// cycles per hour. `rayleigh = 1` is the usual choice.
 pub fn select_rayleigh(span_hours: f64, rayleigh: f64) -> Vec<&'static Constituent> {
     let mut kept: Vec<&'static Constituent> = Vec::new();
-    if !(span_hours > 0.0) {
+    if span_hours.is_nan() || span_hours <= 0.0 {
         return kept;
     }
     let resolution = rayleigh / span_hours;

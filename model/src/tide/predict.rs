@@ -177,7 +177,9 @@ impl TideModel {
 }
 
 fn regular_times(start: i64, step_seconds: i64, count: usize) -> Vec<i64> {
-    (0..count as i64).map(|k| start + k * step_seconds).collect()
+    (0..count as i64)
+        .map(|k| start + k * step_seconds)
+        .collect()
 }
 
 /// Length of a segment over which f and u are held.

@@ -134,8 +134,8 @@ pub(super) fn analyze(args: TideAnalyzeArgs) -> anyhow::Result<()> {
 }
 
 fn load_model(path: &Path) -> anyhow::Result<TideModel> {
-    let text = std::fs::read_to_string(path)
-        .with_context(|| format!("cannot read {}", path.display()))?;
+    let text =
+        std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
     let json: AnalysisJson = serde_json::from_str(&text)
         .with_context(|| format!("{}: not a `tide analyze` constituents file", path.display()))?;
     let reference = parse_time(&json.reference_time)
@@ -284,9 +284,12 @@ pub(super) fn datums(args: DatumsArgs) -> anyhow::Result<()> {
         );
         let lo = ct.partition_point(|&t| t < first);
         let hi = ct.partition_point(|&t| t <= last);
-        let concurrent = config
-            .compute(&ct[lo..hi], &cl[lo..hi])
-            .with_context(|| format!("{}: control datums over the record's period", control.display()))?;
+        let concurrent = config.compute(&ct[lo..hi], &cl[lo..hi]).with_context(|| {
+            format!(
+                "{}: control datums over the record's period",
+                control.display()
+            )
+        })?;
         let text = std::fs::read_to_string(control_datums)
             .with_context(|| format!("cannot read {}", control_datums.display()))?;
         let epoch: DatumsJson = serde_json::from_str(&text)
@@ -346,7 +349,8 @@ fn read_levels(path: &Path) -> anyhow::Result<(Vec<i64>, Vec<f64>)> {
         let time_text = record
             .get(time_col)
             .with_context(|| format!("{name}: line {line}: field time is missing"))?;
-        let time = parse_time(time_text).with_context(|| format!("{name}: line {line}: field time"))?;
+        let time =
+            parse_time(time_text).with_context(|| format!("{name}: line {line}: field time"))?;
         let level_text = record.get(level_col).unwrap_or("");
         let level = if level_text.is_empty() || level_text.eq_ignore_ascii_case("nan") {
             f64::NAN
