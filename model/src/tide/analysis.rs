@@ -699,4 +699,139 @@ mod tests {
             model.constituents.len()
         );
     }
+
+    #[test]
+    fn rayleigh_selection_grows_with_record_length() {
+        let twenty_years = constituents::select_rayleigh(20.0 * 8766.0, 1.0);
+        assert_eq!(twenty_years.len(), constituents::STANDARD.len());
+        assert!(constituents::STANDARD.len() >= 37);
+        let month = constituents::select_rayleigh(30.0 * 24.0, 1.0);
+        let names: Vec<&str> = month.iter().map(|c| c.name).collect();
+        for name in ["M2", "S2", "N2", "K1", "O1", "M4"] {
+            assert!(names.contains(&name), "{name} missing from {names:?}");
+        }
+        // K2 and P1 lie within 1/720 cycles per hour of S2 and K1: not resolved in a month.
+        assert!(
+            !names.contains(&"K2") && !names.contains(&"P1"),
+            "{names:?}"
+        );
+        // Two hours resolve nothing below 0.5 cycles per hour, i.e. no constituent.
+        assert!(constituents::select_rayleigh(2.0, 1.0).is_empty());
+    }
+
+    #[test]
+    fn off_grid_samples_fit_like_grid_samples() {
+        let truth = [("M2", 1.0, 100.0), ("K1", 0.3, 20.0), ("O1", 0.2, 300.0)];
+        let (times, levels) = synthetic(24 * 200, 0.0, &truth);
+        let config = AnalysisParams::default().check().expect("valid");
+        let on_grid = config.fit(&times, &levels).expect("fits");
+        // Move every reading by a varying few minutes and re-predict: all off the grid.
+        let moved: Vec<i64> = times
+            .iter()
+            .enumerate()
+            .map(|(k, t)| t + ((k as i64 * 7919) % 600))
+            .collect();
+        let values: Vec<_> = truth
+            .iter()
+            .map(|(n, a, g)| super::super::predict::ConstituentValue {
+                name: n,
+                amplitude: *a,
+                phase_deg: *g,
+            })
+            .collect();
+        let model = TideModel::from_values(1.5, None, times[0], &values).expect("valid");
+        let moved_levels = model.predict_at(&moved);
+        let off_grid = config.fit(&moved, &moved_levels).expect("fits");
+        for (name, amp, _) in truth {
+            let a = on_grid.constituent(name).expect("fitted").amplitude;
+            let b = off_grid.constituent(name).expect("fitted").amplitude;
+            assert!(
+                (a - amp).abs() < 1e-3 && (b - amp).abs() < 1e-3,
+                "{name}: {a} {b}"
+            );
+        }
+    }
+
+    #[test]
+    fn recovers_a_linear_trend() {
+        let truth = [("M2", 1.0, 10.0), ("S2", 0.3, 40.0)];
+        let (times, mut levels) = synthetic(3 * 8766, 0.01, &truth);
+        let mid = times[times.len() / 2];
+        for (t, l) in times.iter().zip(levels.iter_mut()) {
+            *l += 0.004 * (t - mid) as f64 / HOUR / HOURS_PER_YEAR;
+        }
+        let params = AnalysisParams {
+            trend: true,
+            ..AnalysisParams::default()
+        };
+        let model = params
+            .check()
+            .expect("valid")
+            .fit(&times, &levels)
+            .expect("fits");
+        let trend = model.trend_per_year.expect("trend fitted");
+        assert!((trend - 0.004).abs() < 2e-4, "trend {trend}");
+        assert!((model.mean_level_at(mid) - 1.5).abs() < 2e-3);
+    }
+
+    #[test]
+    fn bad_records_are_typed_errors() {
+        let config = AnalysisParams::default().check().expect("valid");
+        assert!(matches!(
+            config.fit(&[0, 3600, 3600], &[1.0, 2.0, 3.0]),
+            Err(TideError::Unsorted { index: 2, .. })
+        ));
+        assert!(matches!(
+            config.fit(&[0, 3600], &[1.0]),
+            Err(TideError::LengthMismatch { .. })
+        ));
+        let times: Vec<i64> = (0..3).map(|k| k * 3600).collect();
+        assert!(matches!(
+            config.fit(&times, &[1.0; 3]),
+            Err(TideError::NoConstituents { .. })
+        ));
+        assert!(matches!(
+            config.fit(&times, &[f64::NAN; 3]),
+            Err(TideError::TooFewSamples { .. })
+        ));
+        let named = AnalysisParams {
+            constituents: Some(vec!["X9".into()]),
+            ..AnalysisParams::default()
+        };
+        assert!(matches!(
+            named.check(),
+            Err(TideError::UnknownConstituent(_))
+        ));
+        let bad = AnalysisParams {
+            rayleigh: f64::NAN,
+            ..AnalysisParams::default()
+        };
+        assert!(matches!(bad.check(), Err(TideError::BadParameter { .. })));
+    }
+
+    #[test]
+    fn prediction_at_scattered_times_matches_regular_prediction() {
+        let values: Vec<_> = constituents::STANDARD
+            .iter()
+            .map(|c| super::super::predict::ConstituentValue {
+                name: c.name,
+                amplitude: 0.1,
+                phase_deg: 33.0,
+            })
+            .collect();
+        let model =
+            TideModel::from_values(0.5, Some(0.003), 1_600_000_000, &values).expect("valid");
+        let start = 1_600_000_000 - 5 * 86_400;
+        let regular = model.predict_regular(start, 600, 24 * 6 * 70);
+        // The same times visited out of order and one at a time.
+        for k in [0usize, 5000, 17, 9000, 3, 8000] {
+            let t = start + k as i64 * 600;
+            let single = model.predict_at(&[t])[0];
+            assert!(
+                (single - regular[k]).abs() < 1e-9,
+                "k {k}: {single} vs {}",
+                regular[k]
+            );
+        }
+    }
 }

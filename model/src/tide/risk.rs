@@ -186,12 +186,13 @@ impl RiskConfig {
         (0..days as usize)
             .map(|d| {
                 let window = &levels[d * per_day..(d + 1) * per_day];
-                let (k, _) = window
-                    .iter()
-                    .enumerate()
-                    .fold((0, f64::NEG_INFINITY), |best, (k, &x)| {
-                        if x > best.1 { (k, x) } else { best }
-                    });
+                let (k, _) =
+                    window
+                        .iter()
+                        .enumerate()
+                        .fold((0, f64::NEG_INFINITY), |best, (k, &x)| {
+                            if x > best.1 { (k, x) } else { best }
+                        });
                 let i = d * per_day + k;
                 // Parabola through the neighbours (the next day's first reading is there).
                 let (mut time, mut tide) = (start + i as i64 * FINE_STEP_SECONDS, levels[i]);
