@@ -79,6 +79,10 @@ fn parse_time(text: &str) -> anyhow::Result<i64> {
 }
 
 pub(super) fn analyze(args: TideAnalyzeArgs) -> anyhow::Result<()> {
+    print_json(&analysis_output(&args)?)
+}
+
+fn analysis_output(args: &TideAnalyzeArgs) -> anyhow::Result<AnalysisJson> {
     if let Some(lat) = args.latitude.filter(|l| !(-90.0..=90.0).contains(l)) {
         bail!("--latitude {lat} is outside -90..90 degrees");
     }
@@ -130,7 +134,7 @@ pub(super) fn analyze(args: TideAnalyzeArgs) -> anyhow::Result<()> {
         ),
         ci_method: fit.map(|f| f.ci_method.clone()),
     };
-    print_json(&out)
+    Ok(out)
 }
 
 fn load_model(path: &Path) -> anyhow::Result<TideModel> {
@@ -374,4 +378,115 @@ fn read_levels(path: &Path) -> anyhow::Result<(Vec<i64>, Vec<f64>)> {
         bail!("{name}: no readings");
     }
     Ok(rows.into_iter().map(|(t, l, _)| (t, l)).unzip())
+}
+
+#[cfg(test)]
+mod tests {
+    use std::io::Write;
+    use std::path::PathBuf;
+
+    use super::*;
+
+    /// A file in the system temp folder, unique to this test process and name.
+    fn temp_file(name: &str, bytes: &[u8]) -> PathBuf {
+        let path =
+            std::env::temp_dir().join(format!("tidetally-tide-{}-{name}", std::process::id()));
+        std::fs::write(&path, bytes).expect("temp folder writable");
+        path
+    }
+
+    fn synthetic_csv(days: i64) -> String {
+        let mut text = String::from("time,level,flag\n");
+        for k in 0..days * 24 {
+            let h = k as f64;
+            let level = 1.0
+                + 0.8 * (28.984_104_2 * h - 40.0).to_radians().cos()
+                + 0.3 * (15.041_068_6 * h - 100.0).to_radians().cos();
+            let t = DateTime::<Utc>::from_timestamp(1_262_304_000 + k * 3600, 0).expect("in range");
+            let level = if k % 50 == 7 {
+                String::new()
+            } else {
+                format!("{level:.4}")
+            };
+            text.push_str(&format!(
+                "{},{level},\n",
+                t.to_rfc3339_opts(SecondsFormat::Secs, true)
+            ));
+        }
+        text
+    }
+
+    #[test]
+    fn reads_plain_and_gzip_alike_and_sorts() {
+        let text = "time,level\n2010-01-01T01:00:00Z,2.0\n2010-01-01T00:00:00-05:00,NaN\n2010-01-01T00:00:00Z,1.5\n";
+        let plain = temp_file("plain.csv", text.as_bytes());
+        let mut gz = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::fast());
+        gz.write_all(text.as_bytes()).expect("in memory");
+        let zipped = temp_file("zipped.csv", &gz.finish().expect("in memory"));
+        let a = read_levels(&plain).expect("reads");
+        let b = read_levels(&zipped).expect("reads");
+        assert_eq!(a.0, vec![1_262_304_000, 1_262_307_600, 1_262_322_000]);
+        assert_eq!(a.0, b.0);
+        assert!(a.1[2].is_nan() && b.1[2].is_nan());
+        assert_eq!(&a.1[..2], &[1.5, 2.0]);
+    }
+
+    #[test]
+    fn bad_files_name_file_line_and_field() {
+        let no_header = temp_file("nohdr.csv", b"when,height\n2010-01-01T00:00:00Z,1\n");
+        let err = format!("{:#}", read_levels(&no_header).expect_err("bad header"));
+        assert!(err.contains("line 1") && err.contains("time"), "{err}");
+        let bad_time = temp_file(
+            "badtime.csv",
+            b"time,level\n2010-01-01T00:00:00Z,1\n2010-13-01,2\n",
+        );
+        let err = format!("{:#}", read_levels(&bad_time).expect_err("bad time"));
+        assert!(
+            err.contains("line 3") && err.contains("field time"),
+            "{err}"
+        );
+        let dup = temp_file(
+            "dup.csv",
+            b"time,level\n2010-01-01T00:00:00Z,1\n2010-01-01T01:00:00Z,1\n2010-01-01T00:00:00Z,2\n",
+        );
+        let err = format!("{:#}", read_levels(&dup).expect_err("duplicate"));
+        assert!(err.contains("lines 2 and 4"), "{err}");
+    }
+
+    #[test]
+    fn analysis_file_round_trips_into_the_same_prediction() {
+        let csv = temp_file("record.csv", synthetic_csv(60).as_bytes());
+        let args = TideAnalyzeArgs {
+            csv: csv.clone(),
+            latitude: Some(44.0),
+            trend: false,
+        };
+        let out = analysis_output(&args).expect("analyses");
+        let m2 = out
+            .constituents
+            .iter()
+            .find(|c| c.name == "M2")
+            .expect("M2 fitted");
+        assert!(m2.amplitude_ci.is_some() && m2.phase_ci_deg.is_some());
+        let file = temp_file(
+            "constituents.json",
+            serde_json::to_string(&out).expect("serialises").as_bytes(),
+        );
+        let loaded = load_model(&file).expect("loads");
+        let (times, levels) = read_levels(&csv).expect("reads");
+        let predicted = loaded.predict_at(&times);
+        // The record is exactly two constituents and a mean: prediction matches within 1 cm
+        // (nodal factors and the 60-day record leave a little leakage).
+        for ((t, obs), pred) in times.iter().zip(&levels).zip(&predicted) {
+            if obs.is_finite() {
+                assert!((obs - pred).abs() < 0.01, "at {t}: {obs} vs {pred}");
+            }
+        }
+        let bad = TideAnalyzeArgs {
+            csv,
+            latitude: Some(95.0),
+            trend: false,
+        };
+        assert!(analysis_output(&bad).is_err());
+    }
 }
