@@ -129,7 +129,8 @@ fn analysis_output(args: &TideAnalyzeArgs) -> anyhow::Result<AnalysisJson> {
              the Greenwich phase lag (UTC) in degrees; nodal corrections f, u from Schureman \
              (1958) closed forms, astronomical arguments from the Schureman/Foreman series; \
              amplitude_ci and phase_ci_deg are 95% half-widths; constituents chosen by the \
-             Rayleigh criterion (factor 1) from a 67-constituent standard set"
+             Rayleigh criterion (factor 1) from a 67-constituent standard set; latitude is \
+             recorded only (Schureman's nodal corrections do not depend on it)"
                 .to_owned(),
         ),
         ci_method: fit.map(|f| f.ci_method.clone()),
