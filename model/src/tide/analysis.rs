@@ -243,12 +243,10 @@ impl AnalysisConfig {
 
         // Residuals and their spectrum, for the intervals and the summary.
         let present_times: Vec<i64> = present.iter().map(|&i| times[i]).collect();
-        let predicted = model.predict_at(&present_times);
-        let residuals: Vec<f64> = present
-            .iter()
-            .zip(&predicted)
-            .map(|(&i, m)| levels[i] - m)
-            .collect();
+        let mut residuals = model.predict_at(&present_times);
+        for (r, &i) in residuals.iter_mut().zip(&present) {
+            *r = levels[i] - *r;
+        }
         let n = residuals.len() as f64;
         let rss: f64 = residuals.iter().map(|r| r * r).sum();
         let white = rss / (n - p as f64);
