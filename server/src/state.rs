@@ -288,3 +288,14 @@ pub fn load_catalog(state: &AppState) -> Result<usize, StoreError> {
     state.catalog.mark_loaded();
     Ok(ids.len())
 }
+
+/// Stores `results` as the gauge's newest fit (recording its outlooks as issued) and swaps
+/// them in as the serving model (blocking). The entry's other parts are rebuilt from the store.
+pub fn install_results(state: &AppState, id: &str, results: GaugeResults) -> Result<(), StoreError> {
+    state.store.call_blocking(|c| store_results(c, id, &results))?;
+    let model = Ok(Arc::new(ServedModel::new(results)));
+    if let Some(entry) = build_entry(&state.store, id, ModelSource::Keep(model))? {
+        state.catalog.swap_in(entry);
+    }
+    Ok(())
+}

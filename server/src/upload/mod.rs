@@ -124,3 +124,43 @@ family = "auto"
 exceed_days = [10, 5, 20]
 "#;
 }
+
+#[cfg(test)]
+mod no_panic {
+    use super::*;
+    use proptest::prelude::*;
+
+    proptest! {
+        #[test]
+        fn csv_checks_never_panic(bytes in proptest::collection::vec(any::<u8>(), 0..400)) {
+            for kind in [CsvKind::Levels, CsvKind::Enso, CsvKind::Rmm, CsvKind::Wind] {
+                let _ = scan_csv(kind, &bytes);
+            }
+            let _ = decode_body("x", &bytes, 1000);
+            let _ = parse_enso_forecast(&bytes);
+        }
+
+        #[test]
+        fn csv_checks_never_panic_on_near_valid_rows(
+            rows in proptest::collection::vec(("[0-9T:Z+-]{0,26}", "[-0-9.eNa]{0,8}"), 0..20)
+        ) {
+            let mut text = String::from("time,level\n");
+            for (time, level) in rows {
+                text.push_str(&format!("{time},{level}\n"));
+            }
+            let _ = scan_csv(CsvKind::Levels, text.as_bytes());
+        }
+
+        #[test]
+        fn gauge_toml_check_never_panics(text in ".{0,300}") {
+            let _ = parse_gauge_toml(&text);
+        }
+
+        #[test]
+        fn gzip_bodies_of_any_content_never_panic(bytes in proptest::collection::vec(any::<u8>(), 0..400)) {
+            let mut gz = vec![0x1f, 0x8b];
+            gz.extend_from_slice(&bytes);
+            let _ = decode_body("x", &gz, 1000);
+        }
+    }
+}
