@@ -90,7 +90,6 @@ pub async fn seasons(
 ) -> Result<Response, AppError> {
     let query = query_of(query)?;
     let entry = gauge_entry(&state, &id)?;
-    let history = entry.history.as_ref().map_err(|e| AppError::Pipeline(e.clone()))?;
     let wants_csv = match query.format.as_deref() {
         Some("csv") => true,
         Some("json") => false,
@@ -102,6 +101,7 @@ pub async fn seasons(
             .and_then(|v| v.to_str().ok())
             .is_some_and(|accept| accept.contains("text/csv")),
     };
+    let history = entry.history.as_ref().map_err(|e| AppError::Pipeline(e.clone()))?;
     let mut response = if wants_csv {
         let csv = season_csv(&history.value).map_err(|e| AppError::Internal(e.to_string()))?;
         ([(header::CONTENT_TYPE, "text/csv; charset=utf-8")], csv).into_response()
@@ -301,4 +301,44 @@ pub async fn issued(
         });
     }
     Ok(Json(api::IssuedOutlookList { issued }))
+}
+
+#[cfg(test)]
+mod tests {
+    use std::collections::BTreeMap;
+
+    use super::*;
+
+    fn row(season: &str, predictors: &[(&str, f64)]) -> api::SeasonRow {
+        api::SeasonRow {
+            season: season.into(),
+            first_day: "2020-12-01".into(),
+            last_day: "2021-02-28".into(),
+            calendar_days: 90,
+            observed_days: 88,
+            flood_days: 3,
+            completeness: 88.0 / 90.0,
+            used_in_fit: true,
+            predictors: predictors.iter().map(|(k, v)| ((*k).to_owned(), *v)).collect::<BTreeMap<_, _>>(),
+        }
+    }
+
+    #[test]
+    fn season_csv_has_one_column_per_predictor_and_blanks_for_missing() {
+        let history = api::SeasonHistory {
+            gauge: "a".into(),
+            datum: "STND".into(),
+            flood_threshold_m: 0.85,
+            seasons: vec![row("2020-DJF", &[("wind", 1.5), ("enso", -0.5)]), row("2021-DJF", &[("enso", 0.25)])],
+        };
+        let text = String::from_utf8(season_csv(&history).unwrap()).unwrap();
+        let lines: Vec<&str> = text.lines().collect();
+        assert_eq!(
+            lines[0],
+            "season,first_day,last_day,calendar_days,observed_days,flood_days,completeness,used_in_fit,enso,wind"
+        );
+        assert!(lines[1].starts_with("2020-DJF,2020-12-01,2021-02-28,90,88,3,"));
+        assert!(lines[1].ends_with(",true,-0.5,1.5"), "{}", lines[1]);
+        assert!(lines[2].ends_with(",true,0.25,"), "{}", lines[2]);
+    }
 }
