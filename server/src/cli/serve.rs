@@ -60,11 +60,15 @@ async fn serve(config: ServeConfig) -> anyhow::Result<()> {
         .await
         .with_context(|| format!("binding {}", config.addr))?;
     let local = listener.local_addr().context("reading the bound address")?;
-    super::print_json(&serde_json::json!({
-        "listening": local.to_string(),
-        "db": config.db.display().to_string(),
-        "writes": if config.token.is_some() { "enabled" } else { "disabled" },
-    }))?;
+    // One line of JSON, so scripts that bind port 0 can read the address.
+    println!(
+        "{}",
+        serde_json::json!({
+            "listening": local.to_string(),
+            "db": config.db.display().to_string(),
+            "writes": if config.token.is_some() { "enabled" } else { "disabled" },
+        })
+    );
     tracing::info!(addr = %local, db = %config.db.display(), "serving");
 
     let loader = Arc::clone(&state);
