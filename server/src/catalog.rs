@@ -84,7 +84,12 @@ impl GaugeEntry {
             datum: self.meta.datum.clone(),
             flood_threshold_m: self.meta.flood_threshold_m,
             utc_offset: self.meta.utc_offset.clone(),
-            seasons: self.meta.seasons.iter().map(|s| s.name().to_owned()).collect(),
+            seasons: self
+                .meta
+                .seasons
+                .iter()
+                .map(|s| s.name().to_owned())
+                .collect(),
             record: self.record.clone(),
             model_ready: self.model.is_ok(),
             model_status: self.model.as_ref().err().map(ToString::to_string),

@@ -40,7 +40,9 @@ pub enum ConfigError {
         message: String,
     },
     /// The listening address does not parse.
-    #[error("{source_name}: address {value:?} is not HOST:PORT with a numeric host, e.g. 127.0.0.1:8080")]
+    #[error(
+        "{source_name}: address {value:?} is not HOST:PORT with a numeric host, e.g. 127.0.0.1:8080"
+    )]
     BadAddr {
         /// Where the value came from (flag, variable or file key).
         source_name: &'static str,
@@ -268,11 +270,18 @@ mod tests {
             data: Some("flag-data".into()),
             ..Default::default()
         };
-        let c = file.overridden_by(env).overridden_by(flags).validate().unwrap();
+        let c = file
+            .overridden_by(env)
+            .overridden_by(flags)
+            .validate()
+            .unwrap();
         assert_eq!(c.addr.to_string(), "0.0.0.0:9000");
         assert_eq!(c.db, PathBuf::from("env.db"));
         assert_eq!(c.data, PathBuf::from("flag-data"));
-        assert_eq!(c.cors_origins, vec!["https://a.example", "http://b.example:8000"]);
+        assert_eq!(
+            c.cors_origins,
+            vec!["https://a.example", "http://b.example:8000"]
+        );
     }
 
     #[test]
@@ -281,7 +290,13 @@ mod tests {
             addr: Some("localhost".into()),
             ..Default::default()
         };
-        assert!(bad_addr.validate().unwrap_err().to_string().contains("localhost"));
+        assert!(
+            bad_addr
+                .validate()
+                .unwrap_err()
+                .to_string()
+                .contains("localhost")
+        );
         let short = RawServeConfig {
             token: Some("abc".into()),
             ..Default::default()

@@ -16,8 +16,19 @@ pub fn layer(origins: &[String]) -> Option<CorsLayer> {
     Some(
         CorsLayer::new()
             .allow_origin(allow)
-            .allow_methods([Method::GET, Method::HEAD, Method::PUT, Method::POST, Method::OPTIONS])
-            .allow_headers([header::AUTHORIZATION, header::CONTENT_TYPE, header::IF_NONE_MATCH, header::ACCEPT])
+            .allow_methods([
+                Method::GET,
+                Method::HEAD,
+                Method::PUT,
+                Method::POST,
+                Method::OPTIONS,
+            ])
+            .allow_headers([
+                header::AUTHORIZATION,
+                header::CONTENT_TYPE,
+                header::IF_NONE_MATCH,
+                header::ACCEPT,
+            ])
             .expose_headers([header::ETAG, HeaderName::from_static("content-type")])
             .max_age(std::time::Duration::from_secs(3600)),
     )

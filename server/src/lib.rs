@@ -3,6 +3,7 @@
 //!
 //! Entry points: [`app`] builds the router over a shared [`AppState`], [`run`] serves it on a
 //! listener until a shutdown future resolves, and [`cli`] is the command line.
+#![cfg_attr(test, allow(clippy::unwrap_used))]
 
 pub mod api;
 pub mod auth;

@@ -20,7 +20,9 @@ const MAX_HASHED_BODY: usize = 64 << 20;
 pub fn fnv1a64(bytes: &[u8]) -> u64 {
     const OFFSET_BASIS: u64 = 0xcbf2_9ce4_8422_2325;
     const PRIME: u64 = 0x0000_0100_0000_01b3;
-    bytes.iter().fold(OFFSET_BASIS, |hash, &b| (hash ^ u64::from(b)).wrapping_mul(PRIME))
+    bytes.iter().fold(OFFSET_BASIS, |hash, &b| {
+        (hash ^ u64::from(b)).wrapping_mul(PRIME)
+    })
 }
 
 /// A strong ETag for a body: the quoted FNV-1a hash and the length.
@@ -43,7 +45,11 @@ pub fn if_none_match_hits(headers: &HeaderMap, etag: &str) -> bool {
 
 /// On successful GETs: adds an ETag (hashing the body unless the handler set one) and
 /// `Cache-Control`, and answers `304` when `If-None-Match` matches.
-pub async fn etag_and_cache(State(state): State<Arc<AppState>>, request: Request, next: Next) -> Response {
+pub async fn etag_and_cache(
+    State(state): State<Arc<AppState>>,
+    request: Request,
+    next: Next,
+) -> Response {
     let is_read = matches!(*request.method(), Method::GET | Method::HEAD);
     let conditional = request.headers().clone();
     let response = next.run(request).await;
@@ -51,7 +57,11 @@ pub async fn etag_and_cache(State(state): State<Arc<AppState>>, request: Request
         return response;
     }
     let (mut parts, body) = response.into_parts();
-    let (etag, body) = match parts.headers.get(header::ETAG).and_then(|v| v.to_str().ok()) {
+    let (etag, body) = match parts
+        .headers
+        .get(header::ETAG)
+        .and_then(|v| v.to_str().ok())
+    {
         Some(tag) => (tag.to_owned(), body),
         None => match axum::body::to_bytes(body, MAX_HASHED_BODY).await {
             Ok(bytes) => (etag_of(&bytes), Body::from(bytes)),
@@ -109,10 +119,20 @@ pub async fn problem_shape(request: Request, next: Next) -> Response {
 
 fn generic_problem(status: StatusCode) -> Problem {
     let (slug, detail) = match status {
-        StatusCode::METHOD_NOT_ALLOWED => ("method-not-allowed", "this path does not take that method"),
-        StatusCode::PAYLOAD_TOO_LARGE => ("payload-too-large", "the request body is larger than this endpoint accepts"),
-        StatusCode::REQUEST_TIMEOUT => ("timeout", "the request took longer than the service allows"),
-        StatusCode::UNSUPPORTED_MEDIA_TYPE => ("unsupported-media-type", "the request body's media type is not accepted here"),
+        StatusCode::METHOD_NOT_ALLOWED => {
+            ("method-not-allowed", "this path does not take that method")
+        }
+        StatusCode::PAYLOAD_TOO_LARGE => (
+            "payload-too-large",
+            "the request body is larger than this endpoint accepts",
+        ),
+        StatusCode::REQUEST_TIMEOUT => {
+            ("timeout", "the request took longer than the service allows")
+        }
+        StatusCode::UNSUPPORTED_MEDIA_TYPE => (
+            "unsupported-media-type",
+            "the request body's media type is not accepted here",
+        ),
         s if s.is_server_error() => ("internal", "the service failed to answer this request"),
         _ => ("bad-request", "the request could not be understood"),
     };
@@ -126,7 +146,11 @@ fn generic_problem(status: StatusCode) -> Problem {
 }
 
 /// Lets a write through only with the configured bearer token.
-pub async fn require_token(State(state): State<Arc<AppState>>, request: Request, next: Next) -> Response {
+pub async fn require_token(
+    State(state): State<Arc<AppState>>,
+    request: Request,
+    next: Next,
+) -> Response {
     let Some(token) = &state.token else {
         return AppError::WritesDisabled.into_response();
     };
@@ -165,7 +189,10 @@ mod tests {
     #[test]
     fn if_none_match_compares_weakly_over_lists() {
         let mut headers = HeaderMap::new();
-        headers.insert(header::IF_NONE_MATCH, HeaderValue::from_static("\"x\", W/\"abc-3\""));
+        headers.insert(
+            header::IF_NONE_MATCH,
+            HeaderValue::from_static("\"x\", W/\"abc-3\""),
+        );
         assert!(if_none_match_hits(&headers, "\"abc-3\""));
         assert!(!if_none_match_hits(&headers, "\"abd-3\""));
         headers.insert(header::IF_NONE_MATCH, HeaderValue::from_static("*"));

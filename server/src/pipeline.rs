@@ -118,6 +118,10 @@ mod tests {
             enso_forecasts: vec![],
         };
         let err = build_gauge(&inputs).unwrap_err();
-        assert!(err.to_string().contains("PUT /api/v1/gauges/port-alder/levels"), "{err}");
+        assert!(
+            err.to_string()
+                .contains("PUT /api/v1/gauges/port-alder/levels"),
+            "{err}"
+        );
     }
 }

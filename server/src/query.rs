@@ -9,7 +9,10 @@ pub const MAX_K_VALUES: usize = 32;
 /// Parses `LABEL` (e.g. `2026-DJF`) against a gauge's seasons.
 pub fn parse_season(label: &str, specs: &[SeasonSpec]) -> Result<Season, String> {
     if label.len() > 32 {
-        return Err(format!("season {:?}... is too long to be a label", truncate(label)));
+        return Err(format!(
+            "season {:?}... is too long to be a label",
+            truncate(label)
+        ));
     }
     Season::parse(label, specs).map_err(|err| err.to_string())
 }
@@ -17,7 +20,12 @@ pub fn parse_season(label: &str, specs: &[SeasonSpec]) -> Result<Season, String>
 /// Checks the shape `<year>-<NAME>` of a label without a gauge's season list, returning the
 /// canonical `(year, NAME)`.
 pub fn parse_label_shape(label: &str) -> Result<(i32, String), String> {
-    let bad = || format!("season {:?} is not of the form <year>-<season name>, e.g. 2026-DJF", truncate(label));
+    let bad = || {
+        format!(
+            "season {:?} is not of the form <year>-<season name>, e.g. 2026-DJF",
+            truncate(label)
+        )
+    };
     let (year, name) = label.trim().split_once('-').ok_or_else(bad)?;
     let year: i32 = year.parse().map_err(|_| bad())?;
     SeasonSpec::new(name, 1, 1).map_err(|_| bad())?;
@@ -37,7 +45,9 @@ pub fn parse_k_list(text: &str, season_days: u32) -> Result<Vec<u32>, String> {
             .parse()
             .map_err(|_| format!("k value {:?} is not a whole number of days", truncate(part)))?;
         if k == 0 || k > season_days {
-            return Err(format!("k value {k} must be 1 to {season_days} (the season's days)"));
+            return Err(format!(
+                "k value {k} must be 1 to {season_days} (the season's days)"
+            ));
         }
         days.push(k);
         if days.len() > MAX_K_VALUES {
@@ -65,16 +75,25 @@ mod tests {
         assert!(parse_k_list("91", 90).is_err());
         assert!(parse_k_list("5,,6", 90).is_err());
         assert!(parse_k_list("-1", 90).is_err());
-        let many = (1..=40).map(|k| k.to_string()).collect::<Vec<_>>().join(",");
+        let many = (1..=40)
+            .map(|k| k.to_string())
+            .collect::<Vec<_>>()
+            .join(",");
         assert!(parse_k_list(&many, 90).unwrap_err().contains("at most"));
     }
 
     #[test]
     fn labels_are_checked() {
         let specs = SeasonSpec::meteorological();
-        assert_eq!(parse_season("2026-DJF", &specs).unwrap().label(), "2026-DJF");
+        assert_eq!(
+            parse_season("2026-DJF", &specs).unwrap().label(),
+            "2026-DJF"
+        );
         assert!(parse_season("2026-NDJ", &specs).is_err());
-        assert_eq!(parse_label_shape("2026-ndjfm").unwrap(), (2026, "NDJFM".into()));
+        assert_eq!(
+            parse_label_shape("2026-ndjfm").unwrap(),
+            (2026, "NDJFM".into())
+        );
         assert!(parse_label_shape("DJF-2026").is_err());
         assert!(parse_label_shape("3000-DJF").is_err());
     }

@@ -106,9 +106,14 @@ pub fn seed_from_dir(conn: &mut Connection, dir: &Path) -> Result<usize, SeedErr
             },
         )?;
         let levels_path = base.join(&meta.levels_file);
-        let csv = upload::decode_body("water levels", &read(&levels_path)?, upload::MAX_DECOMPRESSED_BYTES)
-            .map_err(|e| invalid(&levels_path, e))?;
-        let summary = upload::scan_csv(CsvKind::Levels, &csv).map_err(|e| invalid(&levels_path, e))?;
+        let csv = upload::decode_body(
+            "water levels",
+            &read(&levels_path)?,
+            upload::MAX_DECOMPRESSED_BYTES,
+        )
+        .map_err(|e| invalid(&levels_path, e))?;
+        let summary =
+            upload::scan_csv(CsvKind::Levels, &csv).map_err(|e| invalid(&levels_path, e))?;
         store::put_levels(
             conn,
             &store::LevelsRecord {
@@ -124,13 +129,21 @@ pub fn seed_from_dir(conn: &mut Connection, dir: &Path) -> Result<usize, SeedErr
         let series = [
             (meta.drivers.enso.as_ref(), SeriesKey::Enso, CsvKind::Enso),
             (meta.drivers.rmm.as_ref(), SeriesKey::Rmm, CsvKind::Rmm),
-            (meta.drivers.wind.as_ref(), SeriesKey::Wind(meta.id.clone()), CsvKind::Wind),
+            (
+                meta.drivers.wind.as_ref(),
+                SeriesKey::Wind(meta.id.clone()),
+                CsvKind::Wind,
+            ),
         ];
         for (file, key, kind) in series {
             let Some(file) = file else { continue };
             let path = base.join(file);
-            let csv = upload::decode_body(kind.describe(), &read(&path)?, upload::MAX_DECOMPRESSED_BYTES)
-                .map_err(|e| invalid(&path, e))?;
+            let csv = upload::decode_body(
+                kind.describe(),
+                &read(&path)?,
+                upload::MAX_DECOMPRESSED_BYTES,
+            )
+            .map_err(|e| invalid(&path, e))?;
             let summary = upload::scan_csv(kind, &csv).map_err(|e| invalid(&path, e))?;
             store::put_series(
                 conn,
@@ -240,7 +253,11 @@ pub fn build_entry(
 }
 
 /// Stores a fit and records its outlooks as issued.
-fn store_results(conn: &mut Connection, id: &str, results: &GaugeResults) -> Result<(), StoreError> {
+fn store_results(
+    conn: &mut Connection,
+    id: &str,
+    results: &GaugeResults,
+) -> Result<(), StoreError> {
     let json = serde_json::to_string(results).expect("wire types always serialize");
     store::put_model(
         conn,
@@ -291,8 +308,14 @@ pub fn load_catalog(state: &AppState) -> Result<usize, StoreError> {
 
 /// Stores `results` as the gauge's newest fit (recording its outlooks as issued) and swaps
 /// them in as the serving model (blocking). The entry's other parts are rebuilt from the store.
-pub fn install_results(state: &AppState, id: &str, results: GaugeResults) -> Result<(), StoreError> {
-    state.store.call_blocking(|c| store_results(c, id, &results))?;
+pub fn install_results(
+    state: &AppState,
+    id: &str,
+    results: GaugeResults,
+) -> Result<(), StoreError> {
+    state
+        .store
+        .call_blocking(|c| store_results(c, id, &results))?;
     let model = Ok(Arc::new(ServedModel::new(results)));
     if let Some(entry) = build_entry(&state.store, id, ModelSource::Keep(model))? {
         state.catalog.swap_in(entry);

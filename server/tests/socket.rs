@@ -1,6 +1,7 @@
 //! The service on a real loopback socket: upload with a token, read back, restart on the
 //! same store file, and find everything still there. Also the `tidetally serve` binary,
 //! seeded from a data folder and stopped by SIGTERM.
+#![allow(clippy::unwrap_used)]
 
 mod support;
 
@@ -23,10 +24,20 @@ fn temp_dir(name: &str) -> PathBuf {
 }
 
 /// One HTTP/1.1 request with `Connection: close`; returns status and body.
-fn http(addr: SocketAddr, method: &str, path: &str, token: Option<&str>, body: &[u8]) -> (u16, String) {
+fn http(
+    addr: SocketAddr,
+    method: &str,
+    path: &str,
+    token: Option<&str>,
+    body: &[u8],
+) -> (u16, String) {
     let mut stream = TcpStream::connect(addr).expect("connect");
-    stream.set_read_timeout(Some(Duration::from_secs(20))).expect("timeout");
-    let auth = token.map(|t| format!("Authorization: Bearer {t}\r\n")).unwrap_or_default();
+    stream
+        .set_read_timeout(Some(Duration::from_secs(20)))
+        .expect("timeout");
+    let auth = token
+        .map(|t| format!("Authorization: Bearer {t}\r\n"))
+        .unwrap_or_default();
     let head = format!(
         "{method} {path} HTTP/1.1\r\nHost: {addr}\r\n{auth}Content-Length: {}\r\nConnection: close\r\n\r\n",
         body.len()
@@ -37,8 +48,15 @@ fn http(addr: SocketAddr, method: &str, path: &str, token: Option<&str>, body: &
     stream.read_to_end(&mut raw).expect("read");
     let text = String::from_utf8_lossy(&raw).into_owned();
     let (head, body) = text.split_once("\r\n\r\n").expect("a header block");
-    let status = head.split(' ').nth(1).and_then(|s| s.parse().ok()).expect("a status");
-    let body = if head.to_ascii_lowercase().contains("transfer-encoding: chunked") {
+    let status = head
+        .split(' ')
+        .nth(1)
+        .and_then(|s| s.parse().ok())
+        .expect("a status");
+    let body = if head
+        .to_ascii_lowercase()
+        .contains("transfer-encoding: chunked")
+    {
         dechunk(body)
     } else {
         body.to_owned()
@@ -59,7 +77,13 @@ fn dechunk(mut body: &str) -> String {
     out
 }
 
-async fn call(addr: SocketAddr, method: &'static str, path: String, token: Option<&'static str>, body: Vec<u8>) -> (u16, String) {
+async fn call(
+    addr: SocketAddr,
+    method: &'static str,
+    path: String,
+    token: Option<&'static str>,
+    body: Vec<u8>,
+) -> (u16, String) {
     tokio::task::spawn_blocking(move || http(addr, method, &path, token, &body))
         .await
         .expect("client task")
@@ -67,15 +91,27 @@ async fn call(addr: SocketAddr, method: &'static str, path: String, token: Optio
 
 /// Starts the service on port 0 over the store file; returns its address, a stop switch
 /// and the server task.
-async fn start(db: &std::path::Path) -> (SocketAddr, tokio::sync::oneshot::Sender<()>, tokio::task::JoinHandle<std::io::Result<()>>) {
+async fn start(
+    db: &std::path::Path,
+) -> (
+    SocketAddr,
+    tokio::sync::oneshot::Sender<()>,
+    tokio::task::JoinHandle<std::io::Result<()>>,
+) {
     let store = Store::open(db).expect("store opens");
-    let state = AppState::new(store, Some(Token::new(TOKEN.into())), Duration::from_secs(60));
+    let state = AppState::new(
+        store,
+        Some(Token::new(TOKEN.into())),
+        Duration::from_secs(60),
+    );
     let loader = std::sync::Arc::clone(&state);
     tokio::task::spawn_blocking(move || state::load_catalog(&loader))
         .await
         .unwrap()
         .expect("catalog loads");
-    let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.expect("bind");
+    let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
+        .await
+        .expect("bind");
     let addr = listener.local_addr().expect("address");
     let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
     let server = tokio::spawn(tidetally_server::run(listener, state, async {
@@ -90,12 +126,33 @@ async fn uploads_survive_a_restart_on_the_same_store_file() {
     let db = dir.join("store.db");
 
     let (addr, stop, server) = start(&db).await;
-    let (status, _) = call(addr, "PUT", "/api/v1/gauges/port-a".into(), Some(TOKEN), gauge_toml("port-a").into_bytes()).await;
+    let (status, _) = call(
+        addr,
+        "PUT",
+        "/api/v1/gauges/port-a".into(),
+        Some(TOKEN),
+        gauge_toml("port-a").into_bytes(),
+    )
+    .await;
     assert_eq!(status, 200);
     let gz = tidetally_server::store::gzip(LEVELS_CSV.as_bytes());
-    let (status, body) = call(addr, "PUT", "/api/v1/gauges/port-a/levels".into(), Some(TOKEN), gz).await;
+    let (status, body) = call(
+        addr,
+        "PUT",
+        "/api/v1/gauges/port-a/levels".into(),
+        Some(TOKEN),
+        gz,
+    )
+    .await;
     assert_eq!(status, 200, "{body}");
-    let (status, _) = call(addr, "PUT", "/api/v1/gauges/port-b".into(), None, gauge_toml("port-b").into_bytes()).await;
+    let (status, _) = call(
+        addr,
+        "PUT",
+        "/api/v1/gauges/port-b".into(),
+        None,
+        gauge_toml("port-b").into_bytes(),
+    )
+    .await;
     assert_eq!(status, 401);
     let (status, body) = call(addr, "GET", "/api/v1/gauges/port-a".into(), None, vec![]).await;
     assert_eq!(status, 200);
@@ -116,7 +173,11 @@ async fn uploads_survive_a_restart_on_the_same_store_file() {
     assert_eq!(after["record"]["readings"], 4);
     let (_, body) = call(addr, "GET", "/api/v1/gauges".into(), None, vec![]).await;
     let list: serde_json::Value = serde_json::from_str(&body).unwrap();
-    assert_eq!(list["gauges"].as_array().unwrap().len(), 1, "the refused write left nothing");
+    assert_eq!(
+        list["gauges"].as_array().unwrap().len(),
+        1,
+        "the refused write left nothing"
+    );
     stop.send(()).unwrap();
     server.await.unwrap().expect("clean shutdown");
     let _ = std::fs::remove_dir_all(&dir);
@@ -164,9 +225,19 @@ fn the_binary_seeds_from_a_data_folder_and_stops_on_sigterm() {
     let (status, body) = http(addr, "GET", "/api/v1/gauges", None, b"");
     assert_eq!(status, 200);
     assert!(body.contains("\"port-c\""), "{body}");
-    let (status, body) = http(addr, "PUT", "/api/v1/gauges/port-c", Some(TOKEN), gauge_toml("port-c").as_bytes());
+    let (status, body) = http(
+        addr,
+        "PUT",
+        "/api/v1/gauges/port-c",
+        Some(TOKEN),
+        gauge_toml("port-c").as_bytes(),
+    );
     assert_eq!(status, 403, "no token configured: {body}");
-    let killed = Command::new("kill").arg("-TERM").arg(child.id().to_string()).status().unwrap();
+    let killed = Command::new("kill")
+        .arg("-TERM")
+        .arg(child.id().to_string())
+        .status()
+        .unwrap();
     assert!(killed.success());
     let exit = child.wait().expect("child exits");
     assert!(exit.success(), "graceful exit on SIGTERM, got {exit}");

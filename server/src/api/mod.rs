@@ -11,13 +11,12 @@ mod skill;
 mod upload;
 
 pub use gauge::{
-    Feature, FeatureCollection, Gauge, GaugeList, GaugeProperties, Point, RecordSpan, SeasonHistory,
-    SeasonRow,
+    Feature, FeatureCollection, Gauge, GaugeList, GaugeProperties, Point, RecordSpan,
+    SeasonHistory, SeasonRow,
 };
 pub use outlook::{
-    exceedance_from_pmf,
     DriverUse, Exceedance, IssuedOutlook, IssuedOutlookList, LastSeason, Outlook, OutlookSet,
-    SeasonVerification, Terciles, TercileReference, Unavailable,
+    SeasonVerification, TercileReference, Terciles, Unavailable, exceedance_from_pmf,
 };
 pub use problem::Problem;
 pub use skill::{Hindcast, HindcastCase, ScoreRow, Skill, Verdict};

@@ -158,6 +158,7 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
 }
 
 /// Prints a value as pretty JSON on stdout.
+#[allow(dead_code, reason = "used by the pipeline commands as they land")]
 pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
     let text = serde_json::to_string_pretty(value)?;
     println!("{text}");

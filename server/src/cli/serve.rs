@@ -40,7 +40,9 @@ fn resolve(args: &super::ServeArgs) -> anyhow::Result<ServeConfig> {
 
 fn init_tracing(json: bool) {
     let filter = EnvFilter::try_from_default_env().unwrap_or_else(|_| EnvFilter::new("info"));
-    let builder = tracing_subscriber::fmt().with_env_filter(filter).with_writer(std::io::stderr);
+    let builder = tracing_subscriber::fmt()
+        .with_env_filter(filter)
+        .with_writer(std::io::stderr);
     // A second init (tests running several servers in one process) keeps the first.
     let _ = if json {
         builder.json().try_init()

@@ -13,7 +13,10 @@ use crate::state::AppState;
 
 /// `GET /healthz`: the process is up.
 pub async fn healthz() -> impl IntoResponse {
-    ([(header::CACHE_CONTROL, "no-store")], Json(json!({"status": "ok"})))
+    (
+        [(header::CACHE_CONTROL, "no-store")],
+        Json(json!({"status": "ok"})),
+    )
 }
 
 /// `GET /readyz`: the store answers and the startup load has finished.

@@ -46,9 +46,18 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
     let upload_limit = DefaultBodyLimit::max(MAX_UPLOAD_BYTES);
     let writes = Router::new()
         .route("/api/v1/gauges/{id}", put(write::put_gauge))
-        .route("/api/v1/gauges/{id}/levels", put(write::put_levels).layer(upload_limit))
-        .route("/api/v1/drivers/{kind}", put(write::put_driver).layer(upload_limit))
-        .route("/api/v1/drivers/wind/{gauge}", put(write::put_wind).layer(upload_limit))
+        .route(
+            "/api/v1/gauges/{id}/levels",
+            put(write::put_levels).layer(upload_limit),
+        )
+        .route(
+            "/api/v1/drivers/{kind}",
+            put(write::put_driver).layer(upload_limit),
+        )
+        .route(
+            "/api/v1/drivers/wind/{gauge}",
+            put(write::put_wind).layer(upload_limit),
+        )
         .route("/api/v1/forecasts/enso", put(write::put_enso_forecast))
         .route("/api/v1/gauges/{id}/refit", post(write::refit))
         .route_layer(from_fn_with_state(Arc::clone(&state), require_token));

@@ -94,14 +94,19 @@ pub async fn seasons(
         Some("csv") => true,
         Some("json") => false,
         Some(other) => {
-            return Err(AppError::BadRequest(format!("format {other:?} must be json or csv")));
+            return Err(AppError::BadRequest(format!(
+                "format {other:?} must be json or csv"
+            )));
         }
         None => headers
             .get(header::ACCEPT)
             .and_then(|v| v.to_str().ok())
             .is_some_and(|accept| accept.contains("text/csv")),
     };
-    let history = entry.history.as_ref().map_err(|e| AppError::Pipeline(e.clone()))?;
+    let history = entry
+        .history
+        .as_ref()
+        .map_err(|e| AppError::Pipeline(e.clone()))?;
     let mut response = if wants_csv {
         let csv = season_csv(&history.value).map_err(|e| AppError::Internal(e.to_string()))?;
         ([(header::CONTENT_TYPE, "text/csv; charset=utf-8")], csv).into_response()
@@ -116,12 +121,21 @@ pub async fn seasons(
 
 /// The season table as CSV: fixed columns, then one column per predictor sorted by name.
 fn season_csv(history: &api::SeasonHistory) -> Result<Vec<u8>, csv::Error> {
-    let predictors: std::collections::BTreeSet<&String> =
-        history.seasons.iter().flat_map(|s| s.predictors.keys()).collect();
+    let predictors: std::collections::BTreeSet<&String> = history
+        .seasons
+        .iter()
+        .flat_map(|s| s.predictors.keys())
+        .collect();
     let mut writer = csv::Writer::from_writer(Vec::new());
     let mut header = vec![
-        "season", "first_day", "last_day", "calendar_days", "observed_days", "flood_days",
-        "completeness", "used_in_fit",
+        "season",
+        "first_day",
+        "last_day",
+        "calendar_days",
+        "observed_days",
+        "flood_days",
+        "completeness",
+        "used_in_fit",
     ];
     header.extend(predictors.iter().map(|p| p.as_str()));
     writer.write_record(&header)?;
@@ -136,11 +150,12 @@ fn season_csv(history: &api::SeasonHistory) -> Result<Vec<u8>, csv::Error> {
             row.completeness.to_string(),
             row.used_in_fit.to_string(),
         ];
-        record.extend(
-            predictors
-                .iter()
-                .map(|p| row.predictors.get(*p).map(f64::to_string).unwrap_or_default()),
-        );
+        record.extend(predictors.iter().map(|p| {
+            row.predictors
+                .get(*p)
+                .map(f64::to_string)
+                .unwrap_or_default()
+        }));
         writer.write_record(&record)?;
     }
     writer.into_inner().map_err(|e| e.into_error().into())
@@ -161,7 +176,10 @@ pub async fn outlook(
 ) -> Result<Response, AppError> {
     let query = query_of(query)?;
     let entry = gauge_entry(&state, &id)?;
-    let model = entry.model.as_ref().map_err(|e| AppError::Pipeline(e.clone()))?;
+    let model = entry
+        .model
+        .as_ref()
+        .map_err(|e| AppError::Pipeline(e.clone()))?;
     let label = match &query.season {
         Some(text) => query::parse_season(text, &entry.meta.seasons)
             .map_err(AppError::BadRequest)?
@@ -173,7 +191,12 @@ pub async fn outlook(
         AppError::Pipeline(PipelineError::SeasonNotServed {
             gauge: id.clone(),
             season: label.clone(),
-            served: model.outlooks.keys().cloned().collect::<Vec<_>>().join(", "),
+            served: model
+                .outlooks
+                .keys()
+                .cloned()
+                .collect::<Vec<_>>()
+                .join(", "),
         })
     })?;
     match &query.k {
@@ -205,7 +228,10 @@ pub async fn hindcast(
     Path(id): Path<String>,
 ) -> Result<Response, AppError> {
     let entry = gauge_entry(&state, &id)?;
-    let model = entry.model.as_ref().map_err(|e| AppError::Pipeline(e.clone()))?;
+    let model = entry
+        .model
+        .as_ref()
+        .map_err(|e| AppError::Pipeline(e.clone()))?;
     Ok(prepared(&model.hindcast, "application/json"))
 }
 
@@ -221,9 +247,9 @@ pub async fn outlooks(
     query: Result<Query<OutlooksQuery>, QueryRejection>,
 ) -> Result<Json<api::OutlookSet>, AppError> {
     let query = query_of(query)?;
-    let text = query
-        .season
-        .ok_or_else(|| AppError::BadRequest("the season parameter is required, e.g. ?season=2026-DJF".into()))?;
+    let text = query.season.ok_or_else(|| {
+        AppError::BadRequest("the season parameter is required, e.g. ?season=2026-DJF".into())
+    })?;
     let (year, name) = query::parse_label_shape(&text).map_err(AppError::BadRequest)?;
     let label = format!("{year}-{name}");
     let mut set = api::OutlookSet {
@@ -277,7 +303,10 @@ pub async fn issued(
         season,
         limit: query.limit.unwrap_or(100).clamp(1, MAX_ISSUED),
     };
-    let records = state.store.call(move |c| store::list_issued(c, &filter)).await?;
+    let records = state
+        .store
+        .call(move |c| store::list_issued(c, &filter))
+        .await?;
     let mut issued = Vec::with_capacity(records.len());
     for record in records {
         let outlook: api::Outlook = serde_json::from_str(&record.outlook_json)
@@ -286,7 +315,11 @@ pub async fn issued(
             .map_err(|e| AppError::Internal(format!("issued outlook {}: {e}", record.id)))?;
         let verification = state.catalog.get(&record.gauge_id).and_then(|entry| {
             let history = entry.history.as_ref().ok()?;
-            let row = history.value.seasons.iter().find(|r| r.season == record.season)?;
+            let row = history
+                .value
+                .seasons
+                .iter()
+                .find(|r| r.season == record.season)?;
             pipeline::verify_issued(&outlook, row).ok()
         });
         issued.push(api::IssuedOutlook {
@@ -319,7 +352,10 @@ mod tests {
             flood_days: 3,
             completeness: 88.0 / 90.0,
             used_in_fit: true,
-            predictors: predictors.iter().map(|(k, v)| ((*k).to_owned(), *v)).collect::<BTreeMap<_, _>>(),
+            predictors: predictors
+                .iter()
+                .map(|(k, v)| ((*k).to_owned(), *v))
+                .collect::<BTreeMap<_, _>>(),
         }
     }
 
@@ -329,7 +365,10 @@ mod tests {
             gauge: "a".into(),
             datum: "STND".into(),
             flood_threshold_m: 0.85,
-            seasons: vec![row("2020-DJF", &[("wind", 1.5), ("enso", -0.5)]), row("2021-DJF", &[("enso", 0.25)])],
+            seasons: vec![
+                row("2020-DJF", &[("wind", 1.5), ("enso", -0.5)]),
+                row("2021-DJF", &[("enso", 0.25)]),
+            ],
         };
         let text = String::from_utf8(season_csv(&history).unwrap()).unwrap();
         let lines: Vec<&str> = text.lines().collect();

@@ -22,9 +22,14 @@ use crate::upload::{self, CsvKind, UploadError};
 fn body_of(body: Result<Bytes, BytesRejection>) -> Result<Bytes, AppError> {
     body.map_err(|rejection| {
         if rejection.status() == StatusCode::PAYLOAD_TOO_LARGE {
-            AppError::PayloadTooLarge("the request body is larger than this endpoint accepts".into())
+            AppError::PayloadTooLarge(
+                "the request body is larger than this endpoint accepts".into(),
+            )
         } else {
-            AppError::BadRequest(format!("the request body could not be read: {}", rejection.body_text()))
+            AppError::BadRequest(format!(
+                "the request body could not be read: {}",
+                rejection.body_text()
+            ))
         }
     })
 }
@@ -96,7 +101,9 @@ pub async fn put_gauge(
             longitude: meta.longitude,
             updated_at: store::now_rfc3339(),
         };
-        state.store.call_blocking(|c| store::put_gauge(c, &record))?;
+        state
+            .store
+            .call_blocking(|c| store::put_gauge(c, &record))?;
         refresh(state, &id)?;
         Ok(api::UploadReceipt {
             stored: "gauge".into(),
@@ -120,7 +127,11 @@ pub async fn put_levels(
     let body = body_of(body)?;
     require_gauge(&state, &id)?;
     let receipt = blocking(&state, move |state| {
-        let csv = upload::decode_body(CsvKind::Levels.describe(), &body, upload::MAX_DECOMPRESSED_BYTES)?;
+        let csv = upload::decode_body(
+            CsvKind::Levels.describe(),
+            &body,
+            upload::MAX_DECOMPRESSED_BYTES,
+        )?;
         let summary = upload::scan_csv(CsvKind::Levels, &csv)?;
         let record = store::LevelsRecord {
             gauge_id: id.clone(),
@@ -139,7 +150,9 @@ pub async fn put_levels(
             content_hash: record.content_hash.clone(),
             note: refit_note(&id),
         };
-        state.store.call_blocking(|c| store::put_levels(c, &record))?;
+        state
+            .store
+            .call_blocking(|c| store::put_levels(c, &record))?;
         refresh(state, &id)?;
         Ok(receipt)
     })
@@ -147,7 +160,12 @@ pub async fn put_levels(
     Ok(Json(receipt))
 }
 
-fn put_series(state: &AppState, key: SeriesKey, kind: CsvKind, body: &[u8]) -> Result<api::UploadReceipt, AppError> {
+fn put_series(
+    state: &AppState,
+    key: SeriesKey,
+    kind: CsvKind,
+    body: &[u8],
+) -> Result<api::UploadReceipt, AppError> {
     let csv = upload::decode_body(kind.describe(), body, upload::MAX_DECOMPRESSED_BYTES)?;
     let summary = upload::scan_csv(kind, &csv)?;
     let gauge = match &key {
@@ -169,7 +187,9 @@ fn put_series(state: &AppState, key: SeriesKey, kind: CsvKind, body: &[u8]) -> R
         content_hash: record.content_hash.clone(),
         note: "stored; POST /api/v1/gauges/{id}/refit for each gauge to use it".into(),
     };
-    state.store.call_blocking(|c| store::put_series(c, &record))?;
+    state
+        .store
+        .call_blocking(|c| store::put_series(c, &record))?;
     Ok(receipt)
 }
 
@@ -220,9 +240,9 @@ pub async fn put_enso_forecast(
         let forecast = upload::parse_enso_forecast(&body)?;
         let json = serde_json::to_string(&forecast).expect("wire types always serialize");
         let now = store::now_rfc3339();
-        state
-            .store
-            .call_blocking(|c| store::put_forecast(c, &forecast.season, &forecast.issued, &json, &now))?;
+        state.store.call_blocking(|c| {
+            store::put_forecast(c, &forecast.season, &forecast.issued, &json, &now)
+        })?;
         Ok(api::UploadReceipt {
             stored: format!("forecast:enso:{}", forecast.season),
             gauge: None,

@@ -14,7 +14,9 @@ pub fn gzip(bytes: &[u8]) -> Vec<u8> {
     encoder
         .write_all(bytes)
         .expect("writing to a Vec cannot fail");
-    encoder.finish().expect("finishing a Vec-backed encoder cannot fail")
+    encoder
+        .finish()
+        .expect("finishing a Vec-backed encoder cannot fail")
 }
 
 /// Decompresses a stored gzip blob.

@@ -26,7 +26,7 @@ use rusqlite::Connection;
 pub use blobs::{gunzip_all, gzip};
 pub use gauges::{GaugeRecord, delete_gauge, get_gauge, list_gauges, put_gauge};
 pub use models::{FittedModelRecord, latest_model, put_model};
-pub use outlooks::{IssuedRecord, IssuedFilter, list_issued, record_issued};
+pub use outlooks::{IssuedFilter, IssuedRecord, list_issued, record_issued};
 pub use schema::SCHEMA_VERSION;
 pub use series::{
     LevelsRecord, SeriesKey, SeriesRecord, get_forecasts, get_levels, get_series, put_forecast,

@@ -109,10 +109,22 @@ mod tests {
     #[test]
     fn reissuing_keeps_the_first_issue_time() {
         let store = Store::open_in_memory().unwrap();
-        let first = vec![issued("a", "2026-DJF", "v1", "t1"), issued("b", "2026-DJF", "v1", "t1")];
-        assert_eq!(store.call_blocking(|c| record_issued(c, &first)).unwrap(), 2);
-        let again = vec![issued("a", "2026-DJF", "v1", "t2"), issued("a", "2026-DJF", "v2", "t2")];
-        assert_eq!(store.call_blocking(|c| record_issued(c, &again)).unwrap(), 1);
+        let first = vec![
+            issued("a", "2026-DJF", "v1", "t1"),
+            issued("b", "2026-DJF", "v1", "t1"),
+        ];
+        assert_eq!(
+            store.call_blocking(|c| record_issued(c, &first)).unwrap(),
+            2
+        );
+        let again = vec![
+            issued("a", "2026-DJF", "v1", "t2"),
+            issued("a", "2026-DJF", "v2", "t2"),
+        ];
+        assert_eq!(
+            store.call_blocking(|c| record_issued(c, &again)).unwrap(),
+            1
+        );
         let filter = IssuedFilter {
             gauge: Some("a".into()),
             season: None,

@@ -124,7 +124,8 @@ mod tests {
     fn a_newer_store_is_refused() {
         let mut conn = Connection::open_in_memory().unwrap();
         migrate(&mut conn).unwrap();
-        conn.execute("UPDATE schema_version SET version = 99", []).unwrap();
+        conn.execute("UPDATE schema_version SET version = 99", [])
+            .unwrap();
         assert!(matches!(
             migrate(&mut conn),
             Err(StoreError::NewerSchema { found: 99, .. })

@@ -43,7 +43,10 @@ fn put_levels_chunked(
     let compressed = gzip(&levels.csv);
     let chunks: Vec<&[u8]> = compressed.chunks(chunk_bytes).collect();
     let tx = conn.transaction()?;
-    tx.execute("DELETE FROM level_uploads WHERE gauge_id = ?1", [&levels.gauge_id])?;
+    tx.execute(
+        "DELETE FROM level_uploads WHERE gauge_id = ?1",
+        [&levels.gauge_id],
+    )?;
     tx.execute(
         "INSERT INTO level_uploads (gauge_id, bytes, readings, first_time, last_time,
                                     content_hash, chunks, uploaded_at)
@@ -300,7 +303,10 @@ mod tests {
         store
             .call_blocking(move |c| put_levels_chunked(c, &upload, 4096, None))
             .unwrap();
-        let back = store.call_blocking(|c| get_levels(c, "g")).unwrap().unwrap();
+        let back = store
+            .call_blocking(|c| get_levels(c, "g"))
+            .unwrap()
+            .unwrap();
         assert_eq!(back, expected);
     }
 
@@ -320,7 +326,10 @@ mod tests {
             .call_blocking(move |c| put_levels_chunked(c, &second, 4096, Some(chunks / 2)))
             .unwrap_err();
         assert!(err.to_string().contains("injected"));
-        let back = store.call_blocking(|c| get_levels(c, "g")).unwrap().unwrap();
+        let back = store
+            .call_blocking(|c| get_levels(c, "g"))
+            .unwrap()
+            .unwrap();
         assert_eq!(back, expected);
         let (uploads, stored_chunks): (i64, i64) = store
             .call_blocking(|c| {
@@ -333,7 +342,10 @@ mod tests {
             })
             .unwrap();
         assert_eq!(uploads, 1);
-        assert_eq!(stored_chunks as usize, gzip(&expected.csv).len().div_ceil(4096));
+        assert_eq!(
+            stored_chunks as usize,
+            gzip(&expected.csv).len().div_ceil(4096)
+        );
     }
 
     #[test]

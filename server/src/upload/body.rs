@@ -3,7 +3,6 @@
 
 use std::io::Read;
 
-
 use super::UploadError;
 
 /// The largest body accepted after decompression (a 40-year one-minute record is ~700 MB;

@@ -59,7 +59,11 @@ impl CsvKind {
             CsvKind::Rmm => &[&[("date", Date), ("rmm1", Value), ("rmm2", Value)]],
             CsvKind::Wind => &[
                 &[("time", DateOrInstant), ("u", Value), ("v", Value)],
-                &[("time", DateOrInstant), ("speed", Value), ("from_deg", Value)],
+                &[
+                    ("time", DateOrInstant),
+                    ("speed", Value),
+                    ("from_deg", Value),
+                ],
             ],
         }
     }
@@ -83,10 +87,17 @@ pub fn scan_csv(kind: CsvKind, bytes: &[u8]) -> Result<ScanSummary, UploadError>
         .has_headers(true)
         .trim(csv::Trim::All)
         .from_reader(bytes);
-    let header = reader.byte_headers().map_err(|err| row_error(what, &err))?.clone();
+    let header = reader
+        .byte_headers()
+        .map_err(|err| row_error(what, &err))?
+        .clone();
     let names: Vec<String> = header
         .iter()
-        .map(|h| String::from_utf8_lossy(h).trim_start_matches('\u{feff}').to_ascii_lowercase())
+        .map(|h| {
+            String::from_utf8_lossy(h)
+                .trim_start_matches('\u{feff}')
+                .to_ascii_lowercase()
+        })
         .collect();
     let columns = kind
         .headers()
@@ -173,7 +184,9 @@ pub fn scan_csv(kind: CsvKind, bytes: &[u8]) -> Result<ScanSummary, UploadError>
 fn row_error(what: &str, err: &csv::Error) -> UploadError {
     let line = err.position().map_or(1, |p| p.line());
     let message = match err.kind() {
-        csv::ErrorKind::UnequalLengths { expected_len, len, .. } => {
+        csv::ErrorKind::UnequalLengths {
+            expected_len, len, ..
+        } => {
             format!("{len} fields where the header has {expected_len}")
         }
         csv::ErrorKind::Utf8 { .. } => "not UTF-8 text".to_owned(),
@@ -192,20 +205,30 @@ fn check_value(text: &str) -> Result<(), String> {
     }
     match text.parse::<f64>() {
         Ok(v) if v.is_finite() => Ok(()),
-        _ => Err(format!("{text:?} is not a number (empty or NaN mark a missing value)")),
+        _ => Err(format!(
+            "{text:?} is not a number (empty or NaN mark a missing value)"
+        )),
     }
 }
 
 /// Seconds since 1970 of a time cell.
 fn parse_time(column: Column, text: &str) -> Result<i64, String> {
-    let date = |t: &str| NaiveDate::parse_from_str(t, "%Y-%m-%d").ok().filter(|_| t.len() == 10);
+    let date = |t: &str| {
+        NaiveDate::parse_from_str(t, "%Y-%m-%d")
+            .ok()
+            .filter(|_| t.len() == 10)
+    };
     let seconds_of = |d: NaiveDate| {
         d.and_hms_opt(0, 0, 0)
             .expect("midnight exists")
             .and_utc()
             .timestamp()
     };
-    let instant = |t: &str| DateTime::parse_from_rfc3339(t).ok().map(|dt| dt.timestamp());
+    let instant = |t: &str| {
+        DateTime::parse_from_rfc3339(t)
+            .ok()
+            .map(|dt| dt.timestamp())
+    };
     let parsed = match column {
         Column::Instant => instant(text),
         Column::Date => date(text).map(seconds_of),
@@ -252,7 +275,14 @@ mod tests {
         );
         let dup = "time,level\n2026-01-01T05:00:00Z,1\n2026-01-01T00:00:00-05:00,2\n";
         let err = scan_csv(CsvKind::Levels, dup.as_bytes()).unwrap_err();
-        assert!(matches!(err, UploadError::Duplicate { first_line: 2, second_line: 3, .. }));
+        assert!(matches!(
+            err,
+            UploadError::Duplicate {
+                first_line: 2,
+                second_line: 3,
+                ..
+            }
+        ));
         let header = scan_csv(CsvKind::Enso, b"date,value\n2026-01,1\n").unwrap_err();
         assert!(header.to_string().contains("month,anomaly"), "{header}");
         let short = scan_csv(CsvKind::Rmm, b"date,rmm1,rmm2\n2026-01-01,1\n").unwrap_err();
@@ -268,6 +298,12 @@ mod tests {
     #[test]
     fn wind_takes_dates_or_times_and_both_headers() {
         assert!(scan_csv(CsvKind::Wind, b"time,u,v\n2026-01-01,1,2\n").is_ok());
-        assert!(scan_csv(CsvKind::Wind, b"time,speed,from_deg\n2026-01-01T00:00:00Z,4,270\n").is_ok());
+        assert!(
+            scan_csv(
+                CsvKind::Wind,
+                b"time,speed,from_deg\n2026-01-01T00:00:00Z,4,270\n"
+            )
+            .is_ok()
+        );
     }
 }

@@ -11,10 +11,14 @@ pub fn parse_enso_forecast(bytes: &[u8]) -> Result<EnsoForecast, UploadError> {
         what: "ENSO forecast JSON".into(),
         message,
     };
-    let forecast: EnsoForecast = serde_json::from_slice(bytes).map_err(|err| doc(err.to_string()))?;
+    let forecast: EnsoForecast =
+        serde_json::from_slice(bytes).map_err(|err| doc(err.to_string()))?;
     label_shape(&forecast.season).map_err(|message| doc(format!("field season: {message}")))?;
     if chrono::NaiveDate::parse_from_str(&forecast.issued, "%Y-%m-%d").is_err() {
-        return Err(doc(format!("field issued: {:?} is not a date YYYY-MM-DD", forecast.issued)));
+        return Err(doc(format!(
+            "field issued: {:?} is not a date YYYY-MM-DD",
+            forecast.issued
+        )));
     }
     match (&forecast.models, &forecast.probabilities) {
         (Some(models), None) => {
@@ -33,14 +37,16 @@ pub fn parse_enso_forecast(bytes: &[u8]) -> Result<EnsoForecast, UploadError> {
             let parts = [p.la_nina, p.neutral, p.el_nino];
             let sum: f64 = parts.iter().sum();
             // Published category forecasts are rounded to whole percent: allow 1.5% slack.
-            if parts.iter().any(|x| !(0.0..=1.0).contains(x)) || !((sum - 1.0).abs() <= 0.015) {
+            if parts.iter().any(|x| !(0.0..=1.0).contains(x)) || (sum - 1.0).abs() > 0.015 {
                 return Err(doc(format!(
                     "field probabilities: each must be in 0..=1 and they must sum to 1 (sum {sum})"
                 )));
             }
         }
         _ => {
-            return Err(doc("exactly one of \"models\" or \"probabilities\" must be given".into()));
+            return Err(doc(
+                "exactly one of \"models\" or \"probabilities\" must be given".into(),
+            ));
         }
     }
     Ok(forecast)

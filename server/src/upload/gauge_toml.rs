@@ -106,17 +106,26 @@ pub fn parse_gauge_toml(text: &str) -> Result<GaugeMeta, UploadError> {
     if !id_ok {
         return Err(field(
             "id",
-            format!("{:?} must be 1 to 64 lowercase letters, digits or '-'", raw.id),
+            format!(
+                "{:?} must be 1 to 64 lowercase letters, digits or '-'",
+                raw.id
+            ),
         ));
     }
     if raw.name.trim().is_empty() {
         return Err(field("name", "must not be empty".into()));
     }
     if !(raw.latitude >= -90.0 && raw.latitude <= 90.0) {
-        return Err(field("latitude", format!("{} is not within -90..=90", raw.latitude)));
+        return Err(field(
+            "latitude",
+            format!("{} is not within -90..=90", raw.latitude),
+        ));
     }
     if !(raw.longitude >= -180.0 && raw.longitude <= 180.0) {
-        return Err(field("longitude", format!("{} is not within -180..=180", raw.longitude)));
+        return Err(field(
+            "longitude",
+            format!("{} is not within -180..=180", raw.longitude),
+        ));
     }
     if !raw.flood_threshold_m.is_finite() {
         return Err(field("flood_threshold_m", "must be a finite number".into()));
@@ -124,16 +133,25 @@ pub fn parse_gauge_toml(text: &str) -> Result<GaugeMeta, UploadError> {
     if !valid_offset(&raw.utc_offset) {
         return Err(field(
             "utc_offset",
-            format!("{:?} must be +HH:MM or -HH:MM within 14 hours", raw.utc_offset),
+            format!(
+                "{:?} must be +HH:MM or -HH:MM within 14 hours",
+                raw.utc_offset
+            ),
         ));
     }
     if !matches!(raw.levels.units.as_str(), "m" | "ft") {
-        return Err(field("levels.units", format!("{:?} must be \"m\" or \"ft\"", raw.levels.units)));
+        return Err(field(
+            "levels.units",
+            format!("{:?} must be \"m\" or \"ft\"", raw.levels.units),
+        ));
     }
     let seasons = match raw.seasons.and_then(|s| s.custom) {
         None => SeasonSpec::meteorological(),
         Some(custom) if custom.is_empty() => {
-            return Err(field("seasons.custom", "must list at least one season".into()));
+            return Err(field(
+                "seasons.custom",
+                "must list at least one season".into(),
+            ));
         }
         Some(custom) => custom
             .iter()
@@ -148,7 +166,10 @@ pub fn parse_gauge_toml(text: &str) -> Result<GaugeMeta, UploadError> {
     exceed_days.sort_unstable();
     exceed_days.dedup();
     if exceed_days.iter().any(|&k| k == 0 || k > 366) {
-        return Err(field("model.exceed_days", "each k must be 1 to 366 days".into()));
+        return Err(field(
+            "model.exceed_days",
+            "each k must be 1 to 366 days".into(),
+        ));
     }
     Ok(GaugeMeta {
         id: raw.id,
@@ -189,7 +210,10 @@ mod tests {
         assert_eq!(g.seasons.len(), 1);
         assert_eq!(g.seasons[0].name(), "NDJFM");
         assert_eq!(g.exceed_days, vec![5, 10, 20]);
-        assert_eq!(g.drivers.enso.as_deref(), Some("../drivers/enso-monthly.csv"));
+        assert_eq!(
+            g.drivers.enso.as_deref(),
+            Some("../drivers/enso-monthly.csv")
+        );
         assert_eq!(g.levels_file, "port-alder-levels.csv.gz");
     }
 
@@ -198,10 +222,22 @@ mod tests {
         let cases = [
             ("id = \"port-alder\"", "id = \"Port Alder\"", "field id"),
             ("latitude = 44.12", "latitude = 144.12", "field latitude"),
-            ("utc_offset = \"-05:00\"", "utc_offset = \"EST\"", "field utc_offset"),
+            (
+                "utc_offset = \"-05:00\"",
+                "utc_offset = \"EST\"",
+                "field utc_offset",
+            ),
             ("units = \"m\"", "units = \"furlong\"", "field levels.units"),
-            ("start_month = 11", "start_month = 13", "field seasons.custom"),
-            ("flood_threshold_m = 0.85", "flood_threshold_m = nan", "field flood_threshold_m"),
+            (
+                "start_month = 11",
+                "start_month = 13",
+                "field seasons.custom",
+            ),
+            (
+                "flood_threshold_m = 0.85",
+                "flood_threshold_m = nan",
+                "field flood_threshold_m",
+            ),
         ];
         for (from, to, expected) in cases {
             let text = EXAMPLE.replace(from, to);

@@ -69,8 +69,16 @@ impl Answer {
 
     /// Asserts a problem+json body with the given status and type slug.
     pub fn assert_problem(&self, status: u16, slug: &str) -> serde_json::Value {
-        assert_eq!(self.status.as_u16(), status, "{}", String::from_utf8_lossy(&self.body));
-        assert_eq!(self.header("content-type"), Some("application/problem+json"));
+        assert_eq!(
+            self.status.as_u16(),
+            status,
+            "{}",
+            String::from_utf8_lossy(&self.body)
+        );
+        assert_eq!(
+            self.header("content-type"),
+            Some("application/problem+json")
+        );
         let p = self.json();
         assert_eq!(p["type"], format!("/problems/{slug}"), "{p}");
         assert_eq!(p["status"], status);
@@ -82,7 +90,13 @@ impl Answer {
 }
 
 /// Sends one request through the router.
-pub async fn send(app: &Router, method: &str, uri: &str, headers: &[(&str, &str)], body: Vec<u8>) -> Answer {
+pub async fn send(
+    app: &Router,
+    method: &str,
+    uri: &str,
+    headers: &[(&str, &str)],
+    body: Vec<u8>,
+) -> Answer {
     let mut request = Request::builder().method(method).uri(uri);
     for (name, value) in headers {
         request = request.header(*name, *value);
@@ -98,7 +112,11 @@ pub async fn send(app: &Router, method: &str, uri: &str, headers: &[(&str, &str)
         .await
         .expect("body")
         .to_vec();
-    Answer { status, headers, body }
+    Answer {
+        status,
+        headers,
+        body,
+    }
 }
 
 /// GET without headers.
@@ -130,7 +148,10 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
         median: 0,
         p10: 0,
         p90: 2,
-        exceedance: vec![api::Exceedance { days: 5, probability: 0.0 }],
+        exceedance: vec![api::Exceedance {
+            days: 5,
+            probability: 0.0,
+        }],
         terciles: vec![],
         climatological_mean: 1.0,
         last_season_observed: None,
@@ -158,7 +179,23 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
 /// Uploads a gauge and its levels through the API.
 pub async fn upload_gauge(app: &Router, id: &str) {
     let a = write(app, "PUT", &format!("/api/v1/gauges/{id}"), gauge_toml(id)).await;
-    assert_eq!(a.status, StatusCode::OK, "{}", String::from_utf8_lossy(&a.body));
-    let a = write(app, "PUT", &format!("/api/v1/gauges/{id}/levels"), LEVELS_CSV).await;
-    assert_eq!(a.status, StatusCode::OK, "{}", String::from_utf8_lossy(&a.body));
+    assert_eq!(
+        a.status,
+        StatusCode::OK,
+        "{}",
+        String::from_utf8_lossy(&a.body)
+    );
+    let a = write(
+        app,
+        "PUT",
+        &format!("/api/v1/gauges/{id}/levels"),
+        LEVELS_CSV,
+    )
+    .await;
+    assert_eq!(
+        a.status,
+        StatusCode::OK,
+        "{}",
+        String::from_utf8_lossy(&a.body)
+    );
 }
