@@ -133,6 +133,10 @@ fn generic_problem(status: StatusCode) -> Problem {
             "unsupported-media-type",
             "the request body's media type is not accepted here",
         ),
+        StatusCode::SERVICE_UNAVAILABLE => (
+            "unavailable",
+            "the service could not answer in time; try again later",
+        ),
         s if s.is_server_error() => ("internal", "the service failed to answer this request"),
         _ => ("bad-request", "the request could not be understood"),
     };
