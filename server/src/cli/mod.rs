@@ -168,7 +168,6 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
 }
 
 /// Prints a value as pretty JSON on stdout.
-#[allow(dead_code, reason = "used by the pipeline commands as they land")]
 pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
     let mut text = serde_json::to_string_pretty(value)?;
     text.push('\n');
