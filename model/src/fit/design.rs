@@ -122,9 +122,10 @@ impl Design {
             .collect();
         selected.sort_by_key(|r| r.season.year());
         let mut design = Design {
-            season_name: selected
-                .first()
-                .map_or_else(|| season_name.to_owned(), |r| r.season.spec().name().to_owned()),
+            season_name: selected.first().map_or_else(
+                || season_name.to_owned(),
+                |r| r.season.spec().name().to_owned(),
+            ),
             predictors: predictors.to_vec(),
             rows: Vec::new(),
             left_out: Vec::new(),
@@ -154,7 +155,12 @@ impl Design {
         Design {
             season_name: self.season_name.clone(),
             predictors: self.predictors.clone(),
-            rows: self.rows.iter().filter(|r| keep(&r.season)).cloned().collect(),
+            rows: self
+                .rows
+                .iter()
+                .filter(|r| keep(&r.season))
+                .cloned()
+                .collect(),
             left_out: self
                 .left_out
                 .iter()
@@ -249,7 +255,10 @@ mod tests {
             flood_days: flood,
             observed_days: observed,
             incomplete: None,
-            drivers: vec![(Predictor::Enso, enso), (Predictor::Wind, DriverValue::Known(1.5))],
+            drivers: vec![
+                (Predictor::Enso, enso),
+                (Predictor::Wind, DriverValue::Known(1.5)),
+            ],
         }
     }
 
@@ -261,7 +270,12 @@ mod tests {
             row("2000-DJF", 2, 90, DriverValue::Known(-0.7)),
             row("2000-MAM", 9, 92, DriverValue::Known(0.1)),
             incomplete,
-            row("2002-DJF", 1, 90, DriverValue::Missing("month 2003-01 missing".into())),
+            row(
+                "2002-DJF",
+                1,
+                90,
+                DriverValue::Missing("month 2003-01 missing".into()),
+            ),
             row("2003-DJF", 0, 0, DriverValue::Known(0.0)),
             row("1999-DJF", 4, 88, DriverValue::Known(1.1)),
         ];
@@ -271,15 +285,30 @@ mod tests {
         assert_eq!(labels, ["1999-DJF", "2000-DJF"]);
         assert_eq!(d.rows[0].x, vec![1.1, 1.5]);
         assert_eq!(d.log_exposure()[0], 88f64.ln());
-        let reasons: Vec<(&str, &LeaveOutReason)> =
-            d.left_out.iter().map(|l| (l.season.as_str(), &l.reason)).collect();
+        let reasons: Vec<(&str, &LeaveOutReason)> = d
+            .left_out
+            .iter()
+            .map(|l| (l.season.as_str(), &l.reason))
+            .collect();
         assert_eq!(reasons.len(), 3);
-        assert!(matches!(reasons[0], ("2001-DJF", LeaveOutReason::IncompleteSeason { .. })));
+        assert!(matches!(
+            reasons[0],
+            ("2001-DJF", LeaveOutReason::IncompleteSeason { .. })
+        ));
         assert!(matches!(
             reasons[1],
-            ("2002-DJF", LeaveOutReason::MissingDriver { predictor: Predictor::Enso, .. })
+            (
+                "2002-DJF",
+                LeaveOutReason::MissingDriver {
+                    predictor: Predictor::Enso,
+                    ..
+                }
+            )
         ));
-        assert!(matches!(reasons[2], ("2003-DJF", LeaveOutReason::NoObservedDays)));
+        assert!(matches!(
+            reasons[2],
+            ("2003-DJF", LeaveOutReason::NoObservedDays)
+        ));
         assert!(d.left_out[1].explanation.contains("2003-01"));
     }
 

@@ -13,7 +13,7 @@ mod design;
 mod model;
 mod predictor;
 
-pub use design::{DesignRow, Design, DriverValue, LeaveOutReason, LeftOut, SeasonRow};
+pub use design::{Design, DesignRow, DriverValue, LeaveOutReason, LeftOut, SeasonRow};
 pub use model::{CoefficientReport, FitPeriod, GaugeModel, MIN_SEASONS, fit_design};
 pub use predictor::{Predictor, UnknownPredictor};
 

@@ -3,10 +3,10 @@
 
 use serde::Serialize;
 
+use super::FitError;
 use super::design::{Design, LeftOut};
 use super::predictor::Predictor;
-use super::FitError;
-use crate::glm::{self, FamilyChoice, FamilyRequest, FittedGlm, GlmSpec};
+use crate::glm::{self, FamilyChoice, FamilyRequest, FittedGlm, GlmError, GlmSpec};
 
 /// One coefficient of a gauge model, with its rate ratio when it belongs to a driver.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -120,7 +120,12 @@ pub fn fit_design(design: &Design, family: FamilyRequest) -> Result<GaugeModel, 
             .predictors
             .iter()
             .enumerate()
-            .map(|(j, p)| (p.as_str().to_owned(), design.rows.iter().map(|r| r.x[j]).collect()))
+            .map(|(j, p)| {
+                (
+                    p.as_str().to_owned(),
+                    design.rows.iter().map(|r| r.x[j]).collect(),
+                )
+            })
             .collect(),
         offset: None,
     }
@@ -130,7 +135,20 @@ pub fn fit_design(design: &Design, family: FamilyRequest) -> Result<GaugeModel, 
         season_name: design.season_name.clone(),
         source,
     })?;
-    let fitted = glm::fit(&spec, family).map_err(|source| FitError::Glm {
+    let fitted = match glm::fit(&spec, family) {
+        Ok(fitted) => Ok(fitted),
+        // The negative-binomial theta iteration can fail to settle when the counts are close
+        // to Poisson (theta heading to infinity); the Poisson fit is then the answer, said in a note.
+        Err(GlmError::NotConverged { stage, iterations }) if family != FamilyRequest::Poisson => {
+            notes.push(format!(
+                "the negative-binomial fit did not converge ({stage} after {iterations} \
+                 iterations), so the Poisson model is used"
+            ));
+            glm::fit(&spec, FamilyRequest::Poisson)
+        }
+        Err(other) => Err(other),
+    }
+    .map_err(|source| FitError::Glm {
         season_name: design.season_name.clone(),
         source,
     })?;
@@ -169,8 +187,16 @@ fn model_from_fit(
             }
         })
         .collect();
-    let first = design.rows.first().map(|r| r.season.label()).unwrap_or_default();
-    let last = design.rows.last().map(|r| r.season.label()).unwrap_or_default();
+    let first = design
+        .rows
+        .first()
+        .map(|r| r.season.label())
+        .unwrap_or_default();
+    let last = design
+        .rows
+        .last()
+        .map(|r| r.season.label())
+        .unwrap_or_default();
     GaugeModel {
         season_name: design.season_name.clone(),
         family: fitted.family,

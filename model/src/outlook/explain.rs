@@ -82,10 +82,11 @@ pub fn driver_sentence(effect: &DriverEffect, enso_shares: Option<[f64; 3]>) -> 
         Predictor::Enso => {
             let shares = enso_shares.unwrap_or([0.0, 1.0, 0.0]);
             let names = ["La Nina", "ENSO-neutral conditions", "El Nino"];
-            let (best, share) = shares
-                .iter()
-                .enumerate()
-                .fold((1, 0.0), |acc, (i, &s)| if s > acc.1 { (i, s) } else { acc });
+            let (best, share) =
+                shares.iter().enumerate().fold(
+                    (1, 0.0),
+                    |acc, (i, &s)| if s > acc.1 { (i, s) } else { acc },
+                );
             format!(
                 "{} expected ({:.0}% of scenarios; mean ENSO index {:+.1} degC): ENSO {change}.",
                 names[best],

@@ -10,18 +10,14 @@
 //! truncated at the season's length and renormalised. Randomness comes from one seeded
 //! `ChaCha8Rng`, one stream per distribution, so an outlook is reproducible from its seed.
 //!
-//! Submodules: [`mixture`] (component pmfs and their average), [`draws`] (parameter
-//! uncertainty), [`predictive`] (scenario x draw mixture of a model), [`references`]
-//! (1991-2020 climatology and trend-only models), [`summary`] (mean, quantiles,
-//! exceedance), [`explain`] (driver effects in words) and [`cautions`].
+//! Submodules: [`predictive`] (scenario x draw mixture of a model), [`references`]
+//! (1991-2020 climatology and trend-only models), [`explain`] (driver effects in words) and
+//! [`cautions`].
 
 pub mod cautions;
-pub mod draws;
 pub mod explain;
-pub mod mixture;
 pub mod predictive;
 pub mod references;
-pub mod summary;
 
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
@@ -31,7 +27,6 @@ pub use cautions::{CautionContext, cautions};
 pub use explain::DriverEffect;
 pub use predictive::{DriverScenarios, predictive_pmf};
 pub use references::{Reference, ReferenceKind};
-pub use summary::Exceedance;
 
 use crate::fit::{FitPeriod, GaugeModel, Predictor};
 use crate::season::Season;
@@ -42,6 +37,15 @@ pub const DEFAULT_DRAWS: usize = 2000;
 
 /// Seed of an outlook's random streams unless asked otherwise.
 pub const DEFAULT_SEED: u64 = 20_261_201;
+
+/// `P(N >= days)`.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Exceedance {
+    /// The number of days `k`.
+    pub days: u32,
+    /// `P(N >= k)`.
+    pub probability: f64,
+}
 
 /// Why an outlook could not be built.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -253,27 +257,38 @@ pub fn assemble(inputs: OutlookInputs<'_>) -> Result<Outlook, OutlookError> {
         });
     }
     let days = target.calendar_days();
-    let pmf = predictive_pmf(model, drivers, days, options.draws, &mut stream(options.seed, 0))?;
-    let mean = summary::mean(&pmf);
+    let distribution = predictive_pmf(
+        model,
+        drivers,
+        days,
+        options.draws,
+        &mut stream(options.seed, 0),
+    )?;
+    let mean = distribution.mean();
 
     let mut terciles = Vec::new();
     let mut reference_means = Vec::new();
-    for (i, reference) in [Some(climatology), trend_only].into_iter().flatten().enumerate() {
-        let reference_pmf = predictive_pmf(
+    for (i, reference) in [Some(climatology), trend_only]
+        .into_iter()
+        .flatten()
+        .enumerate()
+    {
+        let reference_distribution = predictive_pmf(
             &reference.model,
             drivers,
             days,
             options.draws,
             &mut stream(options.seed, 1 + i as u64),
         )?;
-        let edges = TercileEdges::from_reference(&reference_pmf).map_err(|source| {
-            OutlookError::Terciles {
-                reference: reference.name.clone(),
-                source,
-            }
-        })?;
-        let [below, near, above] = edges.categorise(&pmf);
-        let reference_mean = summary::mean(&reference_pmf);
+        let edges =
+            TercileEdges::from_reference(&reference_distribution.pmf).map_err(|source| {
+                OutlookError::Terciles {
+                    reference: reference.name.clone(),
+                    source,
+                }
+            })?;
+        let [below, near, above] = edges.categorise(&distribution.pmf);
+        let reference_mean = reference_distribution.mean();
         reference_means.push(reference_mean);
         terciles.push(TercileOutlook {
             reference: reference.kind,
@@ -295,7 +310,8 @@ pub fn assemble(inputs: OutlookInputs<'_>) -> Result<Outlook, OutlookError> {
         .iter()
         .find(|d| d.predictor == Predictor::Enso)
         .map(|d| explain::enso_category_shares(&d.values));
-    let (p10, p90) = (summary::quantile(&pmf, 0.1), summary::quantile(&pmf, 0.9));
+    let quantile = |q: f64| distribution.quantile(q) as u32;
+    let (p10, p90) = (quantile(0.1), quantile(0.9));
     let mut explanation = vec![explain::summary_sentence(
         mean,
         p10,
@@ -304,7 +320,11 @@ pub fn assemble(inputs: OutlookInputs<'_>) -> Result<Outlook, OutlookError> {
         &climatology.name,
         trend_only_mean,
     )];
-    explanation.extend(effects.iter().map(|e| explain::driver_sentence(e, enso_shares)));
+    explanation.extend(
+        effects
+            .iter()
+            .map(|e| explain::driver_sentence(e, enso_shares)),
+    );
 
     let mut notes = model.notes.clone();
     if climatology.fallback {
@@ -321,12 +341,19 @@ pub fn assemble(inputs: OutlookInputs<'_>) -> Result<Outlook, OutlookError> {
         fit_period: model.fit_period.clone(),
         draws: options.draws,
         seed: options.seed,
-        median: summary::quantile(&pmf, 0.5),
+        median: quantile(0.5),
         p10,
         p90,
-        exceedance: summary::exceedance(&pmf, &options.exceed_days),
+        exceedance: options
+            .exceed_days
+            .iter()
+            .map(|&k| Exceedance {
+                days: k,
+                probability: distribution.exceedance(k as usize),
+            })
+            .collect(),
         mean,
-        pmf,
+        pmf: distribution.pmf.clone(),
         terciles,
         climatological_mean,
         trend_only_mean,

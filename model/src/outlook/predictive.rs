@@ -1,13 +1,13 @@
 //! The predictive distribution of a target season's flood days: an equal-weight mixture over
-//! (driver scenario, parameter draw) pairs.
+//! (driver scenario, parameter draw) pairs, built with the count models' own mixture and
+//! parameter draws ([`crate::glm::PmfMixture`], [`crate::glm::FittedGlm::draw_parameters`]).
 
 use rand::Rng;
 use serde::Serialize;
 
 use super::OutlookError;
-use super::draws::ParameterSampler;
-use super::mixture::Mixture;
 use crate::fit::{GaugeModel, Predictor};
+use crate::glm::{CountDistribution, PmfMixture};
 
 /// One driver's values for the target season: one value per scenario (draw), or a single
 /// value when it is known in advance.
@@ -21,17 +21,17 @@ pub struct DriverScenarios {
     pub source: String,
 }
 
-/// The mixture pmf over `0..=season_days` for `model` with the target's drivers, `draws`
-/// components (scenario `d`, parameter draw `d`), exposure = the season's calendar days.
-/// With `draws == 0` there is no parameter uncertainty: one component per scenario of the
-/// longest driver list at the estimated coefficients.
+/// The mixture distribution over `0..=season_days` for `model` with the target's drivers: `draws`
+/// components, component `d` pairing scenario `d` with parameter draw `d`; the exposure is
+/// the season's calendar days (every day observed). With `draws == 0` there is no parameter
+/// uncertainty: one component per scenario (of the longest driver list) at the estimates.
 pub fn predictive_pmf(
     model: &GaugeModel,
     drivers: &[DriverScenarios],
     season_days: u32,
     draws: usize,
     rng: &mut impl Rng,
-) -> Result<Vec<f64>, OutlookError> {
+) -> Result<CountDistribution, OutlookError> {
     let columns: Vec<&DriverScenarios> = model
         .predictors
         .iter()
@@ -45,33 +45,32 @@ pub fn predictive_pmf(
                 })
         })
         .collect::<Result<_, _>>()?;
-    let sampler = ParameterSampler::new(model);
-    let mut mixture = Mixture::new(season_days);
-    let exposure = f64::from(season_days);
-    let mut x = vec![0.0; columns.len()];
-    let (components, random) = if draws == 0 {
-        (columns.iter().map(|c| c.values.len()).max().unwrap_or(1), false)
+    let parameters = if draws == 0 {
+        let n = columns.iter().map(|c| c.values.len()).max().unwrap_or(1);
+        vec![model.glm.point_parameters(); n]
     } else {
-        (draws, true)
+        model.glm.draw_parameters(rng, draws)
     };
-    for d in 0..components {
+    let offset = f64::from(season_days).ln();
+    let mut mixture = PmfMixture::new(season_days as usize);
+    let mut x = vec![0.0; columns.len()];
+    for (d, draw) in parameters.iter().enumerate() {
         for (slot, column) in x.iter_mut().zip(&columns) {
             *slot = column.values[d % column.values.len()];
         }
-        let parameters = if random {
-            sampler.draw(rng)
-        } else {
-            sampler.point()
-        };
-        // A draw whose mean is not finite (an absurd coefficient draw) is skipped; the count
-        // of skipped draws is checked below.
-        mixture.add(parameters.mean(&x, exposure), parameters.law);
+        // A draw whose mean under- or overflows is skipped; too many skips is an error below.
+        let _ = draw.add_to(&mut mixture, &x, offset);
     }
-    if mixture.components() * 2 < components {
+    let used = mixture.components();
+    if used * 2 < parameters.len() {
         return Err(OutlookError::DegenerateDraws {
-            used: mixture.components(),
-            drawn: components,
+            used,
+            drawn: parameters.len(),
         });
     }
-    Ok(mixture.pmf())
+    let mixed = mixture.finish().ok_or(OutlookError::DegenerateDraws {
+        used: 0,
+        drawn: parameters.len(),
+    })?;
+    Ok(mixed.distribution)
 }
