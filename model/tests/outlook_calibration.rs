@@ -19,12 +19,14 @@
 //! high, so the outlook is a little too narrow there. The checks would catch a real
 //! miscalibration: fitting Poisson to the NB2 seasons covers 0.60 with a U-shaped PIT.
 
+#![allow(clippy::unwrap_used)]
+
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 use rand_distr::{Distribution, Gamma, Normal, Poisson};
 use statrs::distribution::{ChiSquared, ContinuousCDF};
 
-use tidetally_model::fit::{Design, DriverValue, Predictor, SeasonRow, fit_design};
+use tidetally_model::fit::{Design, DriverValue, Predictor, SeasonData, fit_design};
 use tidetally_model::glm::FamilyRequest;
 use tidetally_model::outlook::{DriverScenarios, predictive_pmf};
 use tidetally_model::season::{Season, SeasonSpec};
@@ -64,15 +66,16 @@ fn simulated_pit(theta: Option<f64>, seed: u64) -> Vec<f64> {
     for r in 0..REPLICATES {
         let first = 1950 + (r as i32 % 20);
         let sea = |year: i32| 0.004 * f64::from(year - 1990);
-        let rows: Vec<SeasonRow> = (0..TRAINING_SEASONS)
+        let rows: Vec<SeasonData> = (0..TRAINING_SEASONS)
             .map(|i| {
                 let year = first + i;
                 let enso = enso_law.sample(&mut rng);
                 let flood = draw_count(&mut rng, true_mean(enso, sea(year)), theta);
-                SeasonRow {
+                SeasonData {
                     season: Season::new(year, spec.clone()).unwrap(),
                     flood_days: flood,
                     observed_days: SEASON_DAYS,
+                    calendar_days: SEASON_DAYS,
                     incomplete: None,
                     drivers: vec![
                         (Predictor::Enso, DriverValue::Known(enso)),

@@ -18,20 +18,22 @@ pub enum DriverValue {
 
 /// One season of a gauge's record, as the model sees it: counts, exposure and drivers.
 #[derive(Debug, Clone, PartialEq)]
-pub struct SeasonRow {
+pub struct SeasonData {
     /// The season.
     pub season: Season,
     /// Observed days that reached the flood threshold.
     pub flood_days: u32,
     /// Days with enough readings to count (the exposure).
     pub observed_days: u32,
+    /// Days in the season.
+    pub calendar_days: u32,
     /// Why the season table flags the season as too incomplete to fit, if it does.
     pub incomplete: Option<String>,
     /// Each predictor's value; a predictor absent here counts as missing.
     pub drivers: Vec<(Predictor, DriverValue)>,
 }
 
-impl SeasonRow {
+impl SeasonData {
     /// The value of `predictor` for this season.
     pub fn driver(&self, predictor: Predictor) -> Option<&DriverValue> {
         self.drivers
@@ -115,8 +117,8 @@ impl Design {
     /// using `predictors`. Seasons of other names are ignored; a season is left out when the
     /// season table flags it, when it has no observed day, or when a used driver is missing
     /// (the first missing driver is reported).
-    pub fn build(rows: &[SeasonRow], season_name: &str, predictors: &[Predictor]) -> Design {
-        let mut selected: Vec<&SeasonRow> = rows
+    pub fn build(rows: &[SeasonData], season_name: &str, predictors: &[Predictor]) -> Design {
+        let mut selected: Vec<&SeasonData> = rows
             .iter()
             .filter(|r| r.season.spec().name().eq_ignore_ascii_case(season_name))
             .collect();
@@ -216,7 +218,7 @@ impl Design {
     }
 }
 
-fn design_row(row: &SeasonRow, predictors: &[Predictor]) -> Result<Vec<f64>, LeaveOutReason> {
+fn design_row(row: &SeasonData, predictors: &[Predictor]) -> Result<Vec<f64>, LeaveOutReason> {
     if let Some(detail) = &row.incomplete {
         return Err(LeaveOutReason::IncompleteSeason {
             detail: detail.clone(),
@@ -246,14 +248,16 @@ fn design_row(row: &SeasonRow, predictors: &[Predictor]) -> Result<Vec<f64>, Lea
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 
-    fn row(label: &str, flood: u32, observed: u32, enso: DriverValue) -> SeasonRow {
-        SeasonRow {
+    fn row(label: &str, flood: u32, observed: u32, enso: DriverValue) -> SeasonData {
+        SeasonData {
             season: label.parse().unwrap(),
             flood_days: flood,
             observed_days: observed,
+            calendar_days: 90,
             incomplete: None,
             drivers: vec![
                 (Predictor::Enso, enso),

@@ -112,6 +112,7 @@ impl FromStr for Predictor {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 

@@ -58,6 +58,7 @@ pub fn cautions(context: &CautionContext<'_>) -> Vec<String> {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 

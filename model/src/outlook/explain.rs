@@ -144,6 +144,7 @@ pub fn summary_sentence(
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 

@@ -10,7 +10,8 @@
 //! truncated at the season's length and renormalised. Randomness comes from one seeded
 //! `ChaCha8Rng`, one stream per distribution, so an outlook is reproducible from its seed.
 //!
-//! Submodules: [`predictive`] (scenario x draw mixture of a model), [`references`]
+//! Submodules: [`scenarios`] (the target season's driver scenarios), [`predictive`]
+//! (scenario x draw mixture of a model), [`references`]
 //! (1991-2020 climatology and trend-only models), [`explain`] (driver effects in words) and
 //! [`cautions`].
 
@@ -18,6 +19,7 @@ pub mod cautions;
 pub mod explain;
 pub mod predictive;
 pub mod references;
+pub mod scenarios;
 
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
@@ -28,7 +30,7 @@ pub use explain::DriverEffect;
 pub use predictive::{DriverScenarios, predictive_pmf};
 pub use references::{Reference, ReferenceKind};
 
-use crate::fit::{FitPeriod, GaugeModel, Predictor};
+use crate::fit::{FitPeriod, GaugeModel, PreparedGauge, Predictor, family_request};
 use crate::season::Season;
 use crate::verify::TercileEdges;
 
@@ -75,6 +77,36 @@ pub enum OutlookError {
         #[source]
         source: crate::verify::VerifyError,
     },
+    /// Scenario sampling failed (e.g. a forecast category with no past season).
+    #[error("driver scenarios: {0}")]
+    Scenario(#[source] crate::drivers::ScenarioError),
+    /// The model uses concurrent ENSO but there is no forecast for the target season.
+    #[error(
+        "the model uses the season's own ENSO, so the outlook for {target} needs an ENSO \
+         forecast for {target} ({})",
+        available.as_ref().map_or_else(
+            || "the gauge names no forecast file".to_owned(),
+            |a| format!("the gauge's forecast is for {a}")
+        )
+    )]
+    NoEnsoForecast {
+        /// The target's label.
+        target: String,
+        /// The season of the forecast the gauge has, if any.
+        available: Option<String>,
+    },
+    /// The model uses ENSO but the gauge names no ENSO series.
+    #[error("the model uses ENSO but the gauge names no ENSO index file")]
+    NoEnsoSeries,
+    /// No month of the preceding season's ENSO is known.
+    #[error("no month of the season before {target} is in the ENSO index yet")]
+    NoPrecedingEnso {
+        /// The target's label.
+        target: String,
+    },
+    /// A model could not be fitted.
+    #[error(transparent)]
+    Fit(#[from] crate::fit::FitError),
     /// The target season's name differs from the model's.
     #[error("the target season {target} is not a {season_name} season")]
     SeasonMismatch {
@@ -92,8 +124,10 @@ pub struct OutlookOptions {
     pub draws: usize,
     /// Seed of the random streams.
     pub seed: u64,
-    /// The k of each `P(N >= k)`.
+    /// The k of each `P(N >= k)`; empty = the gauge's `exceed_days` (in [`build`]).
     pub exceed_days: Vec<u32>,
+    /// Resample MJO and wind only from past seasons of the scenario's ENSO category.
+    pub condition_on_enso: bool,
 }
 
 impl Default for OutlookOptions {
@@ -101,7 +135,8 @@ impl Default for OutlookOptions {
         Self {
             draws: DEFAULT_DRAWS,
             seed: DEFAULT_SEED,
-            exceed_days: vec![5, 10, 20],
+            exceed_days: Vec::new(),
+            condition_on_enso: false,
         }
     }
 }
@@ -402,4 +437,63 @@ fn driver_effects(model: &GaugeModel, drivers: &[DriverScenarios]) -> Vec<Driver
             })
         })
         .collect()
+}
+
+/// The outlook of `target` at a prepared gauge from its fitted model of the target's season
+/// name: draws the driver scenarios, fits the two references (climatology and trend-only) and
+/// assembles the outlook.
+pub fn build(
+    model: &GaugeModel,
+    prepared: &PreparedGauge,
+    target: &Season,
+    options: &OutlookOptions,
+) -> Result<Outlook, OutlookError> {
+    let family = family_request(prepared.config.model.family);
+    let season_name = target.spec().name();
+    let climatology = references::climatology(&prepared.seasons, season_name, family)?;
+    let trend_only = match references::trend_only(&prepared.seasons, season_name, family) {
+        Ok(reference) => Some(reference),
+        Err(_) if prepared.drivers.sea_level.is_none() => None,
+        Err(e) => return Err(e.into()),
+    };
+    let scenarios = scenarios::target_scenarios(
+        prepared,
+        target,
+        &model.predictors,
+        options.draws,
+        options.condition_on_enso,
+        &mut stream(options.seed, 3),
+    )?;
+    let last_season = prepared
+        .season(&target.previous_year().label())
+        .map(|s| LastSeason {
+            season: s.season.label(),
+            flood_days: s.flood_days,
+            observed_days: s.observed_days,
+            calendar_days: s.calendar_days,
+        });
+    let gauge = GaugeFacts {
+        id: prepared.config.id.clone(),
+        name: prepared.config.name.clone(),
+        threshold_m: prepared.config.flood_threshold_m,
+        datum: prepared.config.datum.clone(),
+        threshold_derived: false,
+    };
+    let mut options = options.clone();
+    if options.exceed_days.is_empty() {
+        options.exceed_days = prepared.config.model.exceed_days.clone();
+    }
+    let mut outlook = assemble(OutlookInputs {
+        gauge: &gauge,
+        target,
+        model,
+        climatology: &climatology,
+        trend_only: trend_only.as_ref(),
+        drivers: &scenarios.drivers,
+        last_season: last_season.as_ref(),
+        options: &options,
+    })?;
+    outlook.notes.extend(scenarios.notes);
+    outlook.notes.extend(prepared.notes.iter().cloned());
+    Ok(outlook)
 }

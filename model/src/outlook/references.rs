@@ -13,7 +13,7 @@
 
 use serde::Serialize;
 
-use crate::fit::{Design, FitError, GaugeModel, Predictor, SeasonRow, fit_design};
+use crate::fit::{Design, FitError, GaugeModel, Predictor, SeasonData, fit_design};
 use crate::glm::FamilyRequest;
 
 /// The WMO standard normal period in use (1991-2020).
@@ -51,7 +51,7 @@ pub struct Reference {
 
 /// The climatology reference for seasons named `season_name`.
 pub fn climatology(
-    rows: &[SeasonRow],
+    rows: &[SeasonData],
     season_name: &str,
     family: FamilyRequest,
 ) -> Result<Reference, FitError> {
@@ -101,7 +101,7 @@ pub fn climatology(
 
 /// The trend-only reference: the sea-level trend alone, fitted on every usable season.
 pub fn trend_only(
-    rows: &[SeasonRow],
+    rows: &[SeasonData],
     season_name: &str,
     family: FamilyRequest,
 ) -> Result<Reference, FitError> {
