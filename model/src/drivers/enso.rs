@@ -221,6 +221,7 @@ fn parse_month(text: &str) -> Option<(i32, u32)> {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

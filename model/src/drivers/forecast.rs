@@ -283,7 +283,7 @@ fn validate_probabilities(
         }
     }
     let sum = p.la_nina + p.neutral + p.el_nino;
-    if !((sum - 1.0).abs() <= PROBABILITY_SUM_TOLERANCE) {
+    if sum.is_nan() || (sum - 1.0).abs() > PROBABILITY_SUM_TOLERANCE {
         return Err(invalid(
             "probabilities",
             format!("the probabilities sum to {sum}, not 1 (within {PROBABILITY_SUM_TOLERANCE})"),

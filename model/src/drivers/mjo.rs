@@ -215,6 +215,7 @@ impl RmmSeries {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

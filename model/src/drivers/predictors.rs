@@ -178,6 +178,7 @@ fn take<T>(
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

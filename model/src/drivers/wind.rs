@@ -351,6 +351,7 @@ fn parse_time(
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

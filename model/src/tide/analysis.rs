@@ -87,8 +87,11 @@ pub struct AnalysisConfig {
 /// Longest segment, and the cap on its number of slots.
 const SEGMENT_SECONDS: i64 = 30 * 86_400;
 const MAX_SLOTS: i64 = 8_640;
-/// Test frequencies per band for the residual spectrum.
-const BAND_TEST_FREQUENCIES: usize = 12;
+/// Test frequencies per band for the residual spectrum, and how many of the long-period
+/// band's nearest ones each long-period constituent averages.
+const BAND_TEST_FREQUENCIES: usize = 16;
+const LONG_PERIOD_TEST_FREQUENCIES: usize = 32;
+const LONG_PERIOD_NEAREST: usize = 8;
 /// Two-sided 95% normal quantile.
 const Z95: f64 = 1.959_963_984_540_054;
 
@@ -475,8 +478,9 @@ impl BandNoise {
             let tests: Vec<f64> = if band == 0 {
                 let lo = (2.0 * resolution_cpd).min(0.2);
                 let hi: f64 = 0.45;
-                (0..BAND_TEST_FREQUENCIES)
-                    .map(|j| lo * (hi / lo).powf(j as f64 / (BAND_TEST_FREQUENCIES - 1) as f64))
+                let last = (LONG_PERIOD_TEST_FREQUENCIES - 1) as f64;
+                (0..LONG_PERIOD_TEST_FREQUENCIES)
+                    .map(|j| lo * (hi / lo).powf(j as f64 / last))
                     .collect()
             } else {
                 (0..BAND_TEST_FREQUENCIES)
@@ -495,14 +499,15 @@ impl BandNoise {
                     continue;
                 }
                 per_constituent[k] = if band == 0 {
-                    // The four test frequencies nearest (in log frequency) to the constituent.
+                    // The test frequencies nearest (in log frequency) to the constituent.
                     let mut near: Vec<(f64, f64)> = tests
                         .iter()
                         .zip(&power)
                         .map(|(f, pw)| ((f.ln() - cpd[k].max(1e-6).ln()).abs(), *pw))
                         .collect();
                     near.sort_by(|a, b| a.0.total_cmp(&b.0));
-                    near.iter().take(4).map(|x| x.1).sum::<f64>() / 4.0
+                    near.iter().take(LONG_PERIOD_NEAREST).map(|x| x.1).sum::<f64>()
+                        / LONG_PERIOD_NEAREST as f64
                 } else {
                     power.iter().sum::<f64>() / power.len() as f64
                 };

@@ -15,8 +15,11 @@ pub mod threshold;
 
 pub use analysis::{AnalysisConfig, AnalysisParams};
 pub use constituents::{Constituent, STANDARD};
+pub use datums::{Datums, DatumsConfig, DatumsParams, Epoch, HighLow};
 
-pub use predict::{FitSummary, FittedConstituent, TideModel};
+pub use predict::{ConstituentValue, FitSummary, FittedConstituent, TideModel};
+pub use risk::{DailyHigh, ResidualClimatology, RiskCalendar, RiskConfig, RiskDay, RiskParams};
+pub use threshold::{DerivedThreshold, derived_minor_threshold};
 
 
 

@@ -132,4 +132,68 @@ mod tests {
         assert!((diagram[9].observed_frequency.expect("filled") - 2.0 / 3.0).abs() < 1e-15);
         assert_eq!(diagram[5].mean_forecast, None);
     }
+
+    /// Poisson pmf over `0..=n_max` by the recurrence `p(k) = p(k-1) * lambda / k`, with the
+    /// tail beyond `n_max` added to the last entry so it sums to one.
+    fn poisson_pmf(lambda: f64, n_max: usize) -> Vec<f64> {
+        let mut pmf = Vec::with_capacity(n_max + 1);
+        let mut p = (-lambda).exp();
+        for k in 0..=n_max {
+            if k > 0 {
+                p *= lambda / k as f64;
+            }
+            pmf.push(p);
+        }
+        let sum: f64 = pmf.iter().sum();
+        pmf[n_max] += 1.0 - sum;
+        pmf
+    }
+
+    /// Reliability diagram of `P(N >= 5)` when counts come from Poisson(lambda_i) and the
+    /// forecast for each case is Poisson(scale * lambda_i).
+    fn synthetic_diagram(scale: f64) -> Vec<ReliabilityBin> {
+        use crate::verify::exceedance_probability;
+        use rand::{Rng, SeedableRng};
+        use rand_distr::{Distribution, Poisson};
+        let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(2026);
+        let mut probs = Vec::new();
+        let mut outcomes = Vec::new();
+        for _ in 0..20_000 {
+            let lambda: f64 = rng.gen_range(0.5..12.0);
+            let observed: f64 = Poisson::new(lambda).expect("positive rate").sample(&mut rng);
+            let pmf = poisson_pmf(scale * lambda, 80);
+            probs.push(exceedance_probability(&pmf, 5));
+            outcomes.push(observed >= 5.0);
+        }
+        let bins = ProbabilityBins::equal_width(10).expect("ten bins");
+        reliability_diagram(&probs, &outcomes, bins).expect("valid")
+    }
+
+    /// Largest distance from the diagonal in binomial standard errors over bins with at least
+    /// 100 cases.
+    fn worst_departure(diagram: &[ReliabilityBin]) -> f64 {
+        diagram
+            .iter()
+            .filter(|b| b.count >= 100)
+            .map(|b| {
+                let p = b.mean_forecast.expect("filled");
+                let o = b.observed_frequency.expect("filled");
+                let se = (p * (1.0 - p) / b.count as f64).sqrt().max(1e-3);
+                (o - p).abs() / se
+            })
+            .fold(0.0, f64::max)
+    }
+
+    #[test]
+    fn forecasts_from_the_true_model_lie_on_the_diagonal() {
+        // Common practice: a perfectly reliable forecast lies on the diagonal; with forecasts
+        // drawn from the model that made the data, each bin's observed frequency is within
+        // sampling error of its mean forecast. 4 standard errors over 10 bins: a false alarm
+        // has probability below 1e-3 (and the seed is fixed).
+        let truth = synthetic_diagram(1.0);
+        assert!(truth.iter().filter(|b| b.count >= 100).count() >= 8);
+        assert!(worst_departure(&truth) < 4.0, "{truth:?}");
+        // The same check catches a forecast whose rates are a quarter too high.
+        assert!(worst_departure(&synthetic_diagram(1.25)) > 4.0);
+    }
 }
