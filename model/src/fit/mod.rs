@@ -18,8 +18,8 @@ pub use design::{Design, DesignRow, DriverValue, LeaveOutReason, LeftOut, Season
 pub use model::{CoefficientReport, FitPeriod, GaugeModel, MIN_SEASONS, fit_design};
 pub use predictor::{Predictor, UnknownPredictor};
 pub use prepare::{
-    GaugeDrivers, PrepareError, PreparedGauge, driver_of, load_drivers, predictor_of,
-    predictor_settings, prepare, prepare_from,
+    GaugeDrivers, PrepareError, PreparedGauge, TIDE_MARGIN_M, TidalDriver, driver_of, load_drivers,
+    predictor_of, predictor_settings, prepare, prepare_from, tidal_driver,
 };
 
 use crate::glm::FamilyRequest;

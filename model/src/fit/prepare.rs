@@ -12,11 +12,19 @@ use super::design::{DriverValue, SeasonData};
 use super::predictor::Predictor;
 use crate::drivers::{
     self, Coast, Driver, DriverInputs, EnsoForecast, EnsoSeries, MonthlyMeanLevel, PhaseSet,
-    PredictorSettings, RmmSeries, SeaLevelSource, SeasonPredictors, TrendShape, WindSeries,
-    WindStatistic,
+    PredictorSettings, RmmSeries, SeaLevelSource, SeasonPredictors, SeasonalCycle, TrendShape,
+    WindSeries, WindStatistic,
 };
 use crate::gauge::{self, GaugeConfig, GaugeRecord};
 use crate::season::Season;
+use crate::tide::risk::{RiskConfig, RiskParams};
+use crate::tide::{AnalysisParams, TideModel};
+
+/// The tidal driver counts days whose predicted higher high water plus the season's mean sea
+/// level comes within this margin of the flood threshold (metres). A stated choice: wide
+/// enough that a typical storm surge of a few decimetres on such a day floods, so the count
+/// varies between seasons with the nodal and perigean cycles.
+pub const TIDE_MARGIN_M: f64 = 0.25;
 
 /// Why a gauge could not be prepared.
 #[derive(Debug, thiserror::Error)]
@@ -39,6 +47,9 @@ pub enum PrepareError {
     /// The ENSO forecast file.
     #[error(transparent)]
     Forecast(#[from] drivers::ForecastError),
+    /// The harmonic analysis behind the tidal driver.
+    #[error("tidal driver: {0}")]
+    Tide(#[from] crate::tide::TideError),
     /// The gauge's settings for the drivers (phases, coast).
     #[error("{source_name}: {message}")]
     Settings {
@@ -62,6 +73,35 @@ pub struct GaugeDrivers {
     pub sea_level: Option<SeaLevelSource>,
     /// The ENSO forecast for a target season.
     pub enso_forecast: Option<EnsoForecast>,
+    /// The tide model and settings of the tidal driver (when the gauge uses `tide`).
+    pub tide: Option<TidalDriver>,
+    /// Notes from reading the drivers (e.g. a forecast's free-text note).
+    pub notes: Vec<String>,
+}
+
+/// The tidal driver of a gauge: its harmonic tide model and the count rule.
+#[derive(Debug, Clone)]
+pub struct TidalDriver {
+    /// Constituents from the harmonic analysis of the gauge's own record.
+    pub model: TideModel,
+    /// Threshold, margin and local time of the count.
+    pub rule: RiskConfig,
+}
+
+impl TidalDriver {
+    /// The tidal driver of `season`: days whose predicted higher high water plus the
+    /// season's mean sea level (the trend at its middle, or the tide model's mean without a
+    /// trend) reaches the threshold minus [`TIDE_MARGIN_M`].
+    pub fn value(&self, season: &Season, sea_level: Option<&SeaLevelSource>) -> f64 {
+        let msl = sea_level
+            .and_then(|s| s.level_at(season.mid_year()).ok())
+            .map_or(self.model.mean, |v| v.value);
+        f64::from(self.model_value(season, msl))
+    }
+
+    fn model_value(&self, season: &Season, msl: f64) -> u32 {
+        self.rule.tidal_driver(&self.model, season, msl)
+    }
 }
 
 /// A gauge ready to fit: season table with drivers, driver series and settings.
@@ -121,8 +161,23 @@ pub fn load_drivers(
         Some(p) => Some(WindSeries::parse(open(p)?, &name(p), config.utc_offset)?),
         None => None,
     };
+    let mut notes = Vec::new();
     let enso_forecast = match &files.enso_forecast {
-        Some(p) => Some(EnsoForecast::parse(open(p)?, &name(p), &config.seasons.specs)?),
+        Some(p) => {
+            let text = std::fs::read_to_string(p).map_err(|error| PrepareError::Io {
+                path: name(p),
+                error,
+            })?;
+            let (text, note) = split_forecast_note(&text);
+            if let Some(note) = note {
+                notes.push(format!("ENSO forecast note: {note}"));
+            }
+            Some(EnsoForecast::parse(
+                text.as_bytes(),
+                &name(p),
+                &config.seasons.specs,
+            )?)
+        }
         None => None,
     };
     let months: Vec<MonthlyMeanLevel> = record
@@ -136,21 +191,75 @@ pub fn load_drivers(
             readings: u32::try_from(m.readings).unwrap_or(u32::MAX),
         })
         .collect();
-    let sea_level = drivers::fit_trend(&months, TrendShape::Linear)
+    let sea_level = drivers::fit_trend(&months, TrendShape::Linear, SeasonalCycle::default())
         .ok()
         .map(SeaLevelSource::Fitted);
+    let tide = if config.model.predictors.contains(&gauge::Predictor::Tide) {
+        let series = gauge::load_levels(config)?;
+        Some(tidal_driver(config, &series.times, &series.levels_m)?)
+    } else {
+        None
+    };
     Ok(GaugeDrivers {
         enso,
         rmm,
         wind,
         sea_level,
         enso_forecast,
+        tide,
+        notes,
     })
+}
+
+/// Splits a free-text top-level `"note"` off an ENSO forecast JSON (the demo's forecast
+/// carries one; the forecast parser accepts only the documented fields). Text without a
+/// note, or that is not a JSON object, is returned unchanged for the parser to judge, so its
+/// error positions stay those of the file.
+fn split_forecast_note(text: &str) -> (std::borrow::Cow<'_, str>, Option<String>) {
+    let Ok(serde_json::Value::Object(mut object)) = serde_json::from_str(text) else {
+        return (text.into(), None);
+    };
+    match object.remove("note") {
+        Some(serde_json::Value::String(note)) => {
+            let rest = serde_json::Value::Object(object).to_string();
+            (rest.into(), Some(note))
+        }
+        _ => (text.into(), None),
+    }
+}
+
+/// The tidal driver from a gauge's readings (times in unix seconds, levels in metres): a
+/// harmonic analysis (constituents by the Rayleigh criterion, mean and linear trend) and the
+/// count rule at the gauge's threshold.
+pub fn tidal_driver(
+    config: &GaugeConfig,
+    times: &[i64],
+    levels_m: &[f64],
+) -> Result<TidalDriver, PrepareError> {
+    let model = AnalysisParams {
+        trend: true,
+        ..AnalysisParams::default()
+    }
+    .check()?
+    .fit(times, levels_m)?;
+    let rule = RiskParams {
+        threshold: config.flood_threshold_m,
+        margin: TIDE_MARGIN_M,
+        utc_offset_seconds: config.utc_offset.local_minus_utc(),
+        min_day_completeness: config.levels.min_day_completeness,
+    }
+    .check()?;
+    Ok(TidalDriver { model, rule })
 }
 
 /// The drivers' settings from a gauge's description.
 pub fn predictor_settings(config: &GaugeConfig) -> Result<PredictorSettings, PrepareError> {
-    let phases: Vec<i64> = config.model.mjo_phases.iter().map(|&p| i64::from(p)).collect();
+    let phases: Vec<i64> = config
+        .model
+        .mjo_phases
+        .iter()
+        .map(|&p| i64::from(p))
+        .collect();
     let mjo_phases = PhaseSet::new(&phases).map_err(|e| PrepareError::Settings {
         source_name: config.source_name.clone(),
         message: format!("key `model.mjo_phases`: {e}"),
@@ -206,7 +315,7 @@ pub fn prepare_from(
         wind: drivers.wind.as_ref(),
         sea_level: drivers.sea_level.as_ref(),
     };
-    let mut notes = Vec::new();
+    let mut notes = drivers.notes.clone();
     if drivers.sea_level.is_none() {
         notes.push("the level record is too short to fit a sea-level trend".to_owned());
     }
@@ -227,9 +336,12 @@ pub fn prepare_from(
                             .map_or_else(|| format!("{d}: no value"), ToString::to_string),
                     ),
                 },
-                None => DriverValue::Missing(
-                    "tide: the tidal driver is not available in this build".to_owned(),
-                ),
+                None => match &drivers.tide {
+                    Some(tide) => {
+                        DriverValue::Known(tide.value(&row.season, drivers.sea_level.as_ref()))
+                    }
+                    None => DriverValue::Missing("tide: the gauge does not use it".to_owned()),
+                },
             };
             driver_values.push((p, value));
         }
@@ -288,8 +400,8 @@ impl PreparedGauge {
             .iter()
             .filter_map(|spec| {
                 [0, 1].into_iter().find_map(|offset| {
-                    let s = Season::new(chrono::Datelike::year(&last) + offset, spec.clone())
-                        .ok()?;
+                    let s =
+                        Season::new(chrono::Datelike::year(&last) + offset, spec.clone()).ok()?;
                     (s.first_day() > last).then_some(s)
                 })
             })

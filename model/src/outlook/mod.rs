@@ -30,7 +30,7 @@ pub use explain::DriverEffect;
 pub use predictive::{DriverScenarios, predictive_pmf};
 pub use references::{Reference, ReferenceKind};
 
-use crate::fit::{FitPeriod, GaugeModel, PreparedGauge, Predictor, family_request};
+use crate::fit::{FitPeriod, GaugeModel, Predictor, PreparedGauge, family_request};
 use crate::season::Season;
 use crate::verify::TercileEdges;
 

@@ -22,7 +22,7 @@ use crate::drivers::{
     Driver, EnsoTiming, ForecastContent, PastSeason, Resampling, ScenarioGenerator,
     enso::period_months,
 };
-use crate::fit::{DriverValue, PreparedGauge, Predictor};
+use crate::fit::{Predictor, PreparedGauge, TIDE_MARGIN_M};
 use crate::season::Season;
 
 /// Past seasons an ENSO category needs to be resampled on its own (otherwise all past
@@ -53,10 +53,13 @@ pub fn target_scenarios(
     let mut out = Vec::new();
     let wants = |p: Predictor| predictors.contains(&p);
 
-    let needs: Vec<Driver> = [(Predictor::Mjo, Driver::Mjo), (Predictor::Wind, Driver::Wind)]
-        .into_iter()
-        .filter_map(|(p, d)| wants(p).then_some(d))
-        .collect();
+    let needs: Vec<Driver> = [
+        (Predictor::Mjo, Driver::Mjo),
+        (Predictor::Wind, Driver::Wind),
+    ]
+    .into_iter()
+    .filter_map(|(p, d)| wants(p).then_some(d))
+    .collect();
     let season_name = target.spec().name();
     let past: Vec<PastSeason> = prepared
         .seasons
@@ -95,8 +98,9 @@ pub fn target_scenarios(
         });
     }
     let past_words = format!(
-        "resampled from {} past {season_name} seasons{}",
-        past.len(),
+        "resampled from past {season_name} seasons {} to {}{}",
+        past.first().map_or("-", |p| p.label.as_str()),
+        past.last().map_or("-", |p| p.label.as_str()),
         if condition_on_enso {
             " of the scenario's ENSO category"
         } else {
@@ -104,7 +108,10 @@ pub fn target_scenarios(
         }
     );
     for (p, pick) in [
-        (Predictor::Mjo, (|s: &crate::drivers::Scenario| s.mjo_share) as fn(&_) -> _),
+        (
+            Predictor::Mjo,
+            (|s: &crate::drivers::Scenario| s.mjo_share) as fn(&_) -> _,
+        ),
         (Predictor::Wind, |s: &crate::drivers::Scenario| s.wind),
     ] {
         if wants(p) {
@@ -130,7 +137,11 @@ pub fn target_scenarios(
                     source: format!(
                         "sea-level trend {} to the season's middle: {:+.3} m relative to the \
                          threshold, standard error {:.3} m",
-                        if v.extrapolated { "extrapolated" } else { "evaluated" },
+                        if v.extrapolated {
+                            "extrapolated"
+                        } else {
+                            "evaluated"
+                        },
                         v.value,
                         v.std_error
                     ),
@@ -140,13 +151,16 @@ pub fn target_scenarios(
         }
     }
     if wants(Predictor::Tide) {
-        match prepared.season(&target.label()).and_then(|s| s.driver(Predictor::Tide)) {
-            Some(DriverValue::Known(v)) => out.push(DriverScenarios {
+        match &prepared.drivers.tide {
+            Some(tide) => out.push(DriverScenarios {
                 predictor: Predictor::Tide,
-                values: vec![*v],
-                source: "predicted astronomical tide".to_owned(),
+                values: vec![tide.value(target, prepared.drivers.sea_level.as_ref())],
+                source: format!(
+                    "predicted astronomical tide: days whose predicted high water plus the \
+                     projected mean sea level comes within {TIDE_MARGIN_M} m of the threshold"
+                ),
             }),
-            _ => notes.push(format!("no tidal driver value for {target}")),
+            None => notes.push(format!("no tidal driver value for {target}")),
         }
     }
     Ok(TargetScenarios {
@@ -230,7 +244,10 @@ fn enso_generator(
                 .map_err(OutlookError::Scenario)?;
             Ok((
                 generator,
-                format!("observed ENSO index of the preceding months ({})", words.join(", ")),
+                format!(
+                    "observed ENSO index of the preceding months ({})",
+                    words.join(", ")
+                ),
             ))
         }
     }
