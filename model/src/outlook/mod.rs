@@ -10,13 +10,15 @@
 //! truncated at the season's length and renormalised. Randomness comes from one seeded
 //! `ChaCha8Rng`, one stream per distribution, so an outlook is reproducible from its seed.
 //!
-//! Submodules: [`scenarios`] (the target season's driver scenarios), [`predictive`]
-//! (scenario x draw mixture of a model), [`references`]
+//! Submodules: [`scenarios`] (the target season's driver scenarios), [`mixture`] (the
+//! equal-weight mixture of truncated count pmfs), [`predictive`] (scenario x draw mixture of
+//! a model), [`references`]
 //! (1991-2020 climatology and trend-only models), [`explain`] (driver effects in words) and
 //! [`cautions`].
 
 pub mod cautions;
 pub mod explain;
+pub mod mixture;
 pub mod predictive;
 pub mod references;
 pub mod scenarios;

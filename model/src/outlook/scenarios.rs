@@ -151,10 +151,10 @@ pub fn target_scenarios(
         }
     }
     if wants(Predictor::Tide) {
-        match &prepared.drivers.tide {
-            Some(tide) => out.push(DriverScenarios {
+        match prepared.tidal_driver(target) {
+            Some(value) => out.push(DriverScenarios {
                 predictor: Predictor::Tide,
-                values: vec![tide.value(target, prepared.drivers.sea_level.as_ref())],
+                values: vec![value],
                 source: format!(
                     "predicted astronomical tide: days whose predicted high water plus the \
                      projected mean sea level comes within {TIDE_MARGIN_M} m of the threshold"
