@@ -1,7 +1,7 @@
 """Make tests/fixtures/verify/properscoring.json: reference scores from the properscoring
-library (PyPI) for tests/verify_reference.rs.
+and scikit-learn libraries (PyPI) for tests/verify_reference.rs.
 
-Run from the repository root with numpy and properscoring installed:
+Run from the repository root with numpy, properscoring and scikit-learn installed:
     python3 tests/reference/verify_properscoring.py
 
 Cases are drawn with a seeded numpy generator; they are synthetic, not observations.
@@ -11,6 +11,8 @@ Cases are drawn with a seeded numpy generator; they are synthetic, not observati
   P(N >= k) must equal threshold_brier_score at the threshold k - 0.5.
 - real_ensembles: real-valued members for the continuous ensemble CRPS (Hersbach 2000).
 - binary: probabilities and 0/1 outcomes for brier_score.
+- roc: probabilities on a 0.05 grid (so thresholds tie) and 0/1 outcomes for scikit-learn's
+  roc_curve (every threshold kept) and roc_auc_score.
 """
 
 import json
@@ -19,6 +21,7 @@ from pathlib import Path
 
 import numpy as np
 import properscoring as ps
+from sklearn.metrics import roc_auc_score, roc_curve
 
 SEED = 20261201
 EXCEED_DAYS = [1, 3, 5, 10, 20]
@@ -69,19 +72,34 @@ def main() -> None:
         "scores": [float(s) for s in ps.brier_score(outcomes, probabilities)],
     }
 
+    roc_probabilities = np.round(rng.uniform(0.0, 1.0, 80) * 20.0) / 20.0
+    roc_outcomes = (rng.uniform(0.0, 1.0, 80) < roc_probabilities).astype(int)
+    fpr, tpr, thresholds = roc_curve(roc_outcomes, roc_probabilities, drop_intermediate=False)
+    roc = {
+        "probabilities": [float(p) for p in roc_probabilities],
+        "outcomes": [int(o) for o in roc_outcomes],
+        "false_alarm_rate": [float(x) for x in fpr],
+        "hit_rate": [float(x) for x in tpr],
+        # The first threshold is +infinity (never "yes"); JSON has no infinity, so null.
+        "thresholds": [None if np.isinf(t) else float(t) for t in thresholds],
+        "area": float(roc_auc_score(roc_outcomes, roc_probabilities)),
+    }
+
     fixture = {
-        "source": "properscoring crps_ensemble, threshold_brier_score, brier_score",
+        "source": "properscoring crps_ensemble, threshold_brier_score, brier_score; scikit-learn roc_curve, roc_auc_score",
         "script": "tests/reference/verify_properscoring.py",
         "seed": SEED,
         "versions": {
             "python": __import__("platform").python_version(),
             "numpy": version("numpy"),
             "properscoring": version("properscoring"),
+            "scikit-learn": version("scikit-learn"),
         },
         "exceed_days": EXCEED_DAYS,
         "integer_ensembles": integer_cases,
         "real_ensembles": real_cases,
         "binary": binary,
+        "roc": roc,
     }
     out = Path("tests/fixtures/verify/properscoring.json")
     out.write_text(json.dumps(fixture, indent=1) + "\n")

@@ -194,7 +194,7 @@ pub fn gauges() -> Vec<GaugeSpec> {
             latitude: 41.62,
             longitude: -47.35,
             msl_2000_above_datum_m: 2.10,
-            flood_threshold_m: 4.24,
+            flood_threshold_m: 4.18,
             utc_offset_minutes: -180,
             coast_orientation_deg: 160.0,
             // M2 S2 N2 K2 K1 O1 P1 Q1 M4 MS4 Sa Ssa
@@ -254,7 +254,7 @@ pub fn gauges() -> Vec<GaugeSpec> {
             latitude: 41.48,
             longitude: -47.71,
             msl_2000_above_datum_m: 0.90,
-            flood_threshold_m: 2.47,
+            flood_threshold_m: 2.43,
             utc_offset_minutes: -180,
             coast_orientation_deg: 200.0,
             harmonics: [
@@ -313,7 +313,7 @@ pub fn gauges() -> Vec<GaugeSpec> {
             latitude: 41.21,
             longitude: -46.88,
             msl_2000_above_datum_m: 0.60,
-            flood_threshold_m: 1.06,
+            flood_threshold_m: 1.02,
             utc_offset_minutes: -180,
             coast_orientation_deg: 135.0,
             harmonics: [
@@ -372,7 +372,7 @@ pub fn gauges() -> Vec<GaugeSpec> {
             latitude: 41.55,
             longitude: -46.97,
             msl_2000_above_datum_m: 1.50,
-            flood_threshold_m: 3.32,
+            flood_threshold_m: 3.27,
             utc_offset_minutes: -180,
             coast_orientation_deg: 250.0,
             harmonics: [

@@ -16,10 +16,10 @@ use crate::tide::TideModel;
 pub const MIN_DAY_COMPLETENESS: f64 = 0.75;
 
 /// Monte Carlo replicates of the noise per candidate day for the expected counts.
-pub const MC_REPLICATES: usize = 512;
+pub const MC_REPLICATES: usize = 1024;
 
-/// Days whose deterministic level stays this many noise standard deviations below the
-/// threshold get flood probability zero without simulation (P(z >= 5.5) is about 2e-8).
+/// Readings whose deterministic level stays this many noise standard deviations below the
+/// threshold are taken never to reach it (P(z >= 5.5) is about 2e-8 per reading).
 pub const MC_PRUNE_SIGMAS: f64 = 5.5;
 
 /// Whether and how a reading appears in the file.
@@ -236,12 +236,14 @@ fn day_observed(record: &Record, day: usize) -> bool {
 /// Flood days of the written realisation and their Monte Carlo expectation, per local day.
 ///
 /// The expectation of a day's flood indicator depends only on that day's noise, whose path is
-/// a stationary unit AR(1); so each candidate day is simulated [`MC_REPLICATES`] times from a
-/// stationary start, with the deterministic part and the missing mask fixed.
+/// a stationary unit AR(1). Only the day's candidate readings (present, and within
+/// [`MC_PRUNE_SIGMAS`] noise standard deviations of the threshold) can reach it, so each
+/// replicate draws the noise at just those readings, exactly: a stationary start at the first
+/// and, `j` steps later, `z' = phi^j z + sqrt(1 - phi^(2j)) e`. Each day with a candidate is
+/// simulated [`MC_REPLICATES`] times, the deterministic part and missing mask fixed.
 pub fn day_counts(master_seed: u64, gauge: &GaugeSpec, record: &Record) -> Vec<DayCount> {
     let mut rng = component_rng(master_seed, &format!("expected-{}", gauge.id));
     let phi = noise_ar1(gauge);
-    let innov = (1.0 - phi * phi).sqrt();
     let threshold = gauge.flood_threshold_m;
     let units = gauge.units;
     let mut out = Vec::with_capacity(record.days());
@@ -260,27 +262,34 @@ pub fn day_counts(master_seed: u64, gauge: &GaugeSpec, record: &Record) -> Vec<D
             .clone()
             .filter(|&i| present(i))
             .any(|i| from_milli(record.written_milli[i], units) >= threshold);
-        let candidate = range
-            .clone()
-            .filter(|&i| present(i))
-            .any(|i| record.deterministic[i] + MC_PRUNE_SIGMAS * record.sigma[i] >= threshold);
+        // (deterministic level, noise sd, AR(1) carry-over from the previous candidate and
+        // its innovation scale) per candidate reading.
+        let mut candidates: Vec<(f64, f64, f64, f64)> = Vec::new();
+        let mut previous: Option<usize> = None;
+        for i in range.filter(|&i| present(i)) {
+            if record.deterministic[i] + MC_PRUNE_SIGMAS * record.sigma[i] >= threshold {
+                let carry = previous.map_or(0.0, |p| phi.powi((i - p) as i32));
+                candidates.push((
+                    record.deterministic[i],
+                    record.sigma[i],
+                    carry,
+                    (1.0 - carry * carry).sqrt(),
+                ));
+                previous = Some(i);
+            }
+        }
         let mut hits = 0usize;
-        if candidate {
+        if !candidates.is_empty() {
             for _ in 0..MC_REPLICATES {
-                let mut z: f64 = StandardNormal.sample(&mut rng);
-                let mut hit = false;
-                for i in range.clone() {
-                    if present(i) {
-                        let level = record.deterministic[i] + record.sigma[i] * z;
-                        if from_milli(to_milli(level, units), units) >= threshold {
-                            hit = true;
-                            break;
-                        }
-                    }
+                let mut z = 0.0;
+                for &(det, sd, carry, scale) in &candidates {
                     let e: f64 = StandardNormal.sample(&mut rng);
-                    z = phi * z + innov * e;
+                    z = carry * z + scale * e;
+                    if from_milli(to_milli(det + sd * z, units), units) >= threshold {
+                        hits += 1;
+                        break;
+                    }
                 }
-                hits += usize::from(hit);
             }
         }
         out.push(DayCount {

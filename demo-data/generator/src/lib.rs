@@ -4,7 +4,7 @@
 //! files.
 //!
 //! Modules in data-flow order: [`seed`] (random streams), [`calendar`] (days, months,
-//! seasons), [`tide`] (astronomical tide), [`drivers`] (ENSO, MJO, wind), [`gauges`] (the
+//! seasons), [`tide`] (astronomical tide), [`drivers`] (ENSO, MJO, wind), [`mod@gauges`] (the
 //! four gauges), [`levels`] (water levels, flood days and their expectation), [`seasons`]
 //! (per-season truth), [`output`] (file formats), and [`generate`] tying them together.
 
@@ -96,6 +96,8 @@ struct ConstituentTruth {
     name: &'static str,
     coefficients_t_s_h_p_p1: [i32; 5],
     offset_deg: f64,
+    doodson_tau_s_h_p_np_pp: [i32; 6],
+    doodson_offset_deg: f64,
     speed_deg_per_hour: f64,
     nodal: tide::Nodal,
     amplitude_m: f64,
@@ -346,6 +348,8 @@ fn truth_document(
                         name: c.name,
                         coefficients_t_s_h_p_p1: c.coefficients,
                         offset_deg: c.offset_deg,
+                        doodson_tau_s_h_p_np_pp: c.doodson().0,
+                        doodson_offset_deg: c.doodson().1,
                         speed_deg_per_hour: c.speed_deg_per_hour(),
                         nodal: c.nodal,
                         amplitude_m,
@@ -367,7 +371,7 @@ fn truth_document(
         min_day_completeness: MIN_DAY_COMPLETENESS,
         flood_day: "a local-standard-time day with at least 75% of its readings whose highest written level (converted to metres) is >= flood_threshold_m",
         expected_counts: ExpectedCountsNote {
-            method: "per observed day, the probability that the day floods, estimated by simulating the day's unit AR(1) noise from a stationary start with the deterministic level and the missing mask fixed; days whose deterministic level plus prune_sigmas noise sd stays below the threshold get 0; the season's expected count is the sum over its observed days",
+            method: "per observed day, the probability that the day floods, estimated by simulating the day's unit AR(1) noise (stationary start) at its candidate readings only, exactly via z' = phi^j z + sqrt(1 - phi^(2j)) e for a reading j steps later, with the deterministic level and the missing mask fixed; readings whose deterministic level plus prune_sigmas noise sd stays below the threshold are not candidates; the season's expected count is the sum over its observed days",
             replicates_per_day: MC_REPLICATES,
             prune_sigmas: MC_PRUNE_SIGMAS,
         },

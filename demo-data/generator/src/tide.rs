@@ -93,7 +93,8 @@ pub const CONSTITUENTS: [Constituent; 12] = [
     constituent("Q1", [1, -3, 1, 1, 0], 90.0, Nodal::O1),
     constituent("M4", [4, -4, 4, 0, 0], 0.0, Nodal::M2Squared),
     constituent("MS4", [4, -2, 2, 0, 0], 0.0, Nodal::M2),
-    constituent("Sa", [0, 0, 1, 0, 0], 0.0, Nodal::None),
+    // Sa as h - p' (Doodson number 056.554, as in the IHO list and t_tide); Schureman uses h.
+    constituent("Sa", [0, 0, 1, 0, -1], 0.0, Nodal::None),
     constituent("Ssa", [0, 0, 2, 0, 0], 0.0, Nodal::None),
 ];
 
@@ -114,6 +115,15 @@ impl Constituent {
             .zip(RATES_DEG_PER_HOUR)
             .map(|(&c, rate)| f64::from(c) * rate)
             .sum()
+    }
+
+    /// Doodson numbers (coefficients of tau, s, h, p, N', p', with lunar time
+    /// tau = 15 deg/h * UT hours + h - s) and the constant phase in that form, degrees in
+    /// [0, 360): the same argument as [`Constituent::coefficients`] since T = tau + s - h + 180.
+    pub fn doodson(&self) -> ([i32; 6], f64) {
+        let [ct, cs, ch, cp, cp1] = self.coefficients;
+        let offset = (self.offset_deg + 180.0 * f64::from(ct)).rem_euclid(360.0);
+        ([ct, ct + cs, ch - ct, cp, 0, cp1], offset)
     }
 
     /// Equilibrium argument V in degrees (not reduced) for hour angle `t_deg` and longitudes.
@@ -216,19 +226,41 @@ pub struct TideModel {
 impl TideModel {
     /// Tide height in metres about mean sea level at a UTC time (minutes since 1970).
     pub fn height(&self, minutes_utc: i64) -> f64 {
-        let lon = mean_longitudes(julian_centuries(minutes_utc));
-        let angles = orbit_angles(lon.n);
-        let t_deg = 180.0 + 0.25 * minutes_utc.rem_euclid(MINUTES_PER_DAY) as f64;
-        CONSTITUENTS
+        arguments(minutes_utc)
             .iter()
             .zip(&self.harmonics)
-            .map(|(c, h)| {
-                let (f, u) = nodal_factor(c.nodal, &angles);
-                let phase = (c.argument(t_deg, &lon) + u - h.phase_deg).rem_euclid(360.0);
-                f * h.amplitude_m * phase.to_radians().cos()
+            .map(|(a, h)| {
+                let phase = (a.v_deg + a.u_deg - h.phase_deg).rem_euclid(360.0);
+                a.f * h.amplitude_m * phase.to_radians().cos()
             })
             .sum()
     }
+}
+
+/// One constituent's nodal factor, nodal angle and equilibrium argument at an instant.
+#[derive(Debug, Clone, Copy)]
+pub struct Argument {
+    /// Nodal factor f.
+    pub f: f64,
+    /// Nodal angle u, degrees.
+    pub u_deg: f64,
+    /// Equilibrium argument V, degrees in [0, 360).
+    pub v_deg: f64,
+}
+
+/// f, u and V of every entry of [`CONSTITUENTS`] at a UTC time (minutes since 1970).
+pub fn arguments(minutes_utc: i64) -> [Argument; 12] {
+    let lon = mean_longitudes(julian_centuries(minutes_utc));
+    let angles = orbit_angles(lon.n);
+    let t_deg = 180.0 + 0.25 * minutes_utc.rem_euclid(MINUTES_PER_DAY) as f64;
+    CONSTITUENTS.map(|c| {
+        let (f, u_deg) = nodal_factor(c.nodal, &angles);
+        Argument {
+            f,
+            u_deg,
+            v_deg: c.argument(t_deg, &lon).rem_euclid(360.0),
+        }
+    })
 }
 
 /// Nodal factor f of M2 at a UTC time (minutes since 1970); recorded as a tidal driver.
@@ -242,7 +274,7 @@ mod tests {
     use super::*;
 
     /// Constituent speeds in degrees per hour from Schureman (1958) Table 2 / the IHO
-    /// constituent list, to 1e-6 deg/h (recalled from memory).
+    /// constituent list, to 1e-6 deg/h (recalled from memory; Sa as h - p', 0.0410667).
     #[test]
     fn speeds_match_published_values() {
         let published = [
@@ -256,7 +288,7 @@ mod tests {
             ("Q1", 13.398_660_9),
             ("M4", 57.968_208_4),
             ("MS4", 58.984_104_2),
-            ("Sa", 0.041_068_6),
+            ("Sa", 0.041_066_7),
             ("Ssa", 0.082_137_3),
         ];
         for (c, (name, speed)) in CONSTITUENTS.iter().zip(published) {
@@ -294,6 +326,25 @@ mod tests {
         }
     }
 
+    /// Doodson numbers of the IHO constituent list / t_tide (recalled from memory): K1
+    /// 165.555 with +90 deg, O1 145.555 with -90 deg, Sa 056.554.
+    #[test]
+    fn doodson_form_matches_the_usual_numbers() {
+        let by_name = |n: &str| {
+            CONSTITUENTS
+                .iter()
+                .find(|c| c.name == n)
+                .expect("constituent present")
+                .doodson()
+        };
+        assert_eq!(by_name("M2"), ([2, 0, 0, 0, 0, 0], 0.0));
+        assert_eq!(by_name("K1"), ([1, 1, 0, 0, 0, 0], 90.0));
+        assert_eq!(by_name("O1"), ([1, -1, 0, 0, 0, 0], 270.0));
+        assert_eq!(by_name("Q1"), ([1, -2, 0, 1, 0, 0], 270.0));
+        assert_eq!(by_name("N2"), ([2, -1, 0, 1, 0, 0], 0.0));
+        assert_eq!(by_name("Sa"), ([0, 0, 1, 0, 0, -1], 0.0));
+    }
+
     /// A pure M2 tide has its high water when V + u = g, i.e. the phase argument is zero.
     #[test]
     fn pure_m2_peaks_at_its_phase_lag() {
@@ -313,5 +364,83 @@ mod tests {
         let height = model.height(start + best);
         let f = m2_nodal_factor(start + best);
         assert!((height - f).abs() < 1e-4, "peak {height} vs f {f}");
+    }
+
+    /// Solve `a x = b` by Gaussian elimination with partial pivoting (test helper).
+    fn solve(mut a: Vec<Vec<f64>>, mut b: Vec<f64>) -> Vec<f64> {
+        let n = b.len();
+        for col in 0..n {
+            let pivot = (col..n)
+                .max_by(|&i, &j| a[i][col].abs().total_cmp(&a[j][col].abs()))
+                .expect("non-empty range");
+            a.swap(col, pivot);
+            b.swap(col, pivot);
+            let (upper, lower) = a.split_at_mut(col + 1);
+            let pivot_row = &upper[col];
+            for (offset, row) in lower.iter_mut().enumerate() {
+                let factor = row[col] / pivot_row[col];
+                for (x, p) in row.iter_mut().zip(pivot_row).skip(col) {
+                    *x -= factor * p;
+                }
+                b[col + 1 + offset] -= factor * b[col];
+            }
+        }
+        let mut x = vec![0.0; n];
+        for row in (0..n).rev() {
+            let tail: f64 = (row + 1..n).map(|k| a[row][k] * x[k]).sum();
+            x[row] = (b[row] - tail) / a[row][row];
+        }
+        x
+    }
+
+    /// A least-squares harmonic analysis of one year of hourly tide, with the same
+    /// equilibrium arguments and nodal corrections, recovers every amplitude and Greenwich
+    /// phase lag: the convention `f A cos(V + u - g)` is what an analysis inverts.
+    #[test]
+    fn harmonic_analysis_recovers_amplitudes_and_phase_lags() {
+        let mut harmonics = [Harmonic {
+            amplitude_m: 0.0,
+            phase_deg: 0.0,
+        }; 12];
+        for (k, h) in harmonics.iter_mut().enumerate() {
+            h.amplitude_m = 0.02 + 0.1 * k as f64;
+            h.phase_deg = (37.0 * k as f64 + 11.0) % 360.0;
+        }
+        let model = TideModel { harmonics };
+        let start = 18_000 * MINUTES_PER_DAY;
+        let n_par = 1 + 2 * CONSTITUENTS.len();
+        let mut ata = vec![vec![0.0; n_par]; n_par];
+        let mut aty = vec![0.0; n_par];
+        for hour in 0..(366 * 24) {
+            let minute = start + hour * 60;
+            let mut row = vec![1.0];
+            for a in arguments(minute) {
+                let phase = (a.v_deg + a.u_deg).to_radians();
+                row.push(a.f * phase.cos());
+                row.push(a.f * phase.sin());
+            }
+            let y = model.height(minute);
+            for i in 0..n_par {
+                aty[i] += row[i] * y;
+                for j in 0..n_par {
+                    ata[i][j] += row[i] * row[j];
+                }
+            }
+        }
+        let x = solve(ata, aty);
+        assert!(x[0].abs() < 1e-6, "mean {}", x[0]);
+        for (k, h) in harmonics.iter().enumerate() {
+            let (c, s) = (x[1 + 2 * k], x[2 + 2 * k]);
+            let amplitude = c.hypot(s);
+            let g = s.atan2(c).to_degrees().rem_euclid(360.0);
+            let name = CONSTITUENTS[k].name;
+            // Noise-free data: only rounding error remains.
+            assert!(
+                (amplitude - h.amplitude_m).abs() < 1e-6,
+                "{name} A {amplitude}"
+            );
+            let dg = (g - h.phase_deg).rem_euclid(360.0);
+            assert!(dg.min(360.0 - dg) < 1e-4, "{name} g {g} vs {}", h.phase_deg);
+        }
     }
 }

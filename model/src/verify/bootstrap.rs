@@ -236,7 +236,10 @@ mod tests {
             .expect("enough")
             .skill_interval(&scores, &scores)
             .expect("valid");
-        assert_eq!((interval.estimate, interval.lower, interval.upper), (0.0, 0.0, 0.0));
+        assert_eq!(
+            (interval.estimate, interval.lower, interval.upper),
+            (0.0, 0.0, 0.0)
+        );
         assert_eq!(verdict(&interval), Verdict::NoBetterThan);
     }
 
@@ -255,7 +258,9 @@ mod tests {
 
     #[test]
     fn interval_brackets_the_estimate_and_is_reproducible() {
-        let reference: Vec<f64> = (0..45).map(|i| ((i * 37) % 11) as f64 / 10.0 + 0.1).collect();
+        let reference: Vec<f64> = (0..45)
+            .map(|i| ((i * 37) % 11) as f64 / 10.0 + 0.1)
+            .collect();
         let forecast: Vec<f64> = (0..45).map(|i| ((i * 53) % 13) as f64 / 12.0).collect();
         let boot = Bootstrap::new(1000, 42).expect("enough");
         let a = boot.skill_interval(&forecast, &reference).expect("valid");
@@ -263,7 +268,10 @@ mod tests {
         assert_eq!(a, b);
         assert!(a.lower < a.estimate && a.estimate < a.upper);
         let other = Bootstrap::new(1000, 43).expect("enough");
-        assert_ne!(other.skill_interval(&forecast, &reference).expect("valid"), a);
+        assert_ne!(
+            other.skill_interval(&forecast, &reference).expect("valid"),
+            a
+        );
     }
 
     #[test]
@@ -271,7 +279,10 @@ mod tests {
         let v = [0.0, 1.0, 2.0, 3.0, 4.0];
         assert_eq!(percentile(&v, 0.5), 2.0);
         assert!((percentile(&v, 0.1) - 0.4).abs() < 1e-15);
-        assert_eq!(percentile(&[f64::NEG_INFINITY, 1.0], 0.5), f64::NEG_INFINITY);
+        assert_eq!(
+            percentile(&[f64::NEG_INFINITY, 1.0], 0.5),
+            f64::NEG_INFINITY
+        );
     }
 
     #[test]

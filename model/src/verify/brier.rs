@@ -13,7 +13,9 @@
 //! (bins as in [`ProbabilityBins`]) and `obar` the overall base rate. The split is exact when
 //! every forecast in a bin has the same value; otherwise the remainder, the within-bin terms of
 //! Stephenson, Coelho and Jolliffe (2008, Weather and Forecasting 23), is reported as
-//! [`BrierDecomposition::within_bin`] so the parts always add up to the score.
+//! [`BrierDecomposition::within_bin`] so the parts always add up to the score. The Brier
+//! skill score is `BSS = 1 - BS / BS_reference` ([`super::skill_score`]); against the
+//! sample climatology, `BS_reference` is the uncertainty term.
 
 use super::reliability::{ProbabilityBins, ReliabilityBin, reliability_diagram};
 use super::{VerifyError, check_event_forecasts};
@@ -23,7 +25,10 @@ use super::{VerifyError, check_event_forecasts};
 pub fn exceedance_probability(pmf: &[f64], days: u32) -> f64 {
     let start = (days as usize).min(pmf.len());
     // A fold from +0.0: an empty float sum is -0.0, which would print as "-0.0".
-    pmf[start..].iter().fold(0.0, |sum, p| sum + p).clamp(0.0, 1.0)
+    pmf[start..]
+        .iter()
+        .fold(0.0, |sum, p| sum + p)
+        .clamp(0.0, 1.0)
 }
 
 /// Brier score of one case.
@@ -152,5 +157,18 @@ mod tests {
         assert!(d.within_bin.abs() > 1e-6);
         let sum = d.reliability - d.resolution + d.uncertainty + d.within_bin;
         assert!((sum - d.score).abs() < 1e-15);
+    }
+
+    #[test]
+    fn sample_climatology_scores_the_uncertainty_term() {
+        // Forecasting the base rate every time: BS = obar (1 - obar), reliability and
+        // resolution both zero (Murphy 1973).
+        let outcomes = [true, false, false, true, false, false, false, true];
+        let probs = [3.0 / 8.0; 8];
+        let bins = ProbabilityBins::equal_width(10).expect("ten bins");
+        let d = brier_decomposition(&probs, &outcomes, bins).expect("valid forecasts");
+        assert!((d.score - 15.0 / 64.0).abs() < 1e-15);
+        assert!((d.uncertainty - d.score).abs() < 1e-15);
+        assert!(d.reliability.abs() < 1e-15 && d.resolution.abs() < 1e-15);
     }
 }

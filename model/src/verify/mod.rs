@@ -12,8 +12,9 @@
 //! - [`reliability`]: reliability-diagram bins;
 //! - [`roc`]: relative operating characteristic points and area;
 //! - [`sedi`]: 2x2 contingency tables and the symmetric extremal dependence index;
-//! - [`log_score`]: logarithmic (ignorance) score, and the absolute error of the forecast mean;
+//! - [`log_score`](mod@log_score): logarithmic (ignorance) score, and the absolute error of the forecast mean;
 //! - [`skill`]: skill score `1 - score / reference`;
+//! - [`cases`]: all per-case scores of one forecast system, computed once;
 //! - [`bootstrap`]: seeded case resampling of precomputed per-case scores into a 95 % interval
 //!   and a plain verdict.
 //!
@@ -22,6 +23,7 @@
 
 pub mod bootstrap;
 pub mod brier;
+pub mod cases;
 pub mod crps;
 pub mod log_score;
 pub mod reliability;
@@ -34,6 +36,7 @@ pub use bootstrap::{Bootstrap, MIN_RESAMPLES, SkillInterval, Verdict, verdict};
 pub use brier::{
     BrierDecomposition, brier_case, brier_decomposition, brier_score, exceedance_probability,
 };
+pub use cases::CaseScores;
 pub use crps::{crps_count, crps_ensemble};
 pub use log_score::{LOG_SCORE_FLOOR, absolute_error, forecast_mean, log_score};
 pub use reliability::{ProbabilityBins, ReliabilityBin, reliability_diagram};
@@ -241,7 +244,10 @@ mod tests {
             validate_pmf(&[1.2, -0.2]),
             Err(VerifyError::BadProbability { days: 1, .. })
         ));
-        assert!(matches!(validate_pmf(&[0.5, 0.4]), Err(VerifyError::PmfSum { .. })));
+        assert!(matches!(
+            validate_pmf(&[0.5, 0.4]),
+            Err(VerifyError::PmfSum { .. })
+        ));
         assert_eq!(validate_pmf(&[0.25, 0.75 + 5e-7]), Ok(()));
     }
 

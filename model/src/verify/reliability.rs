@@ -160,7 +160,9 @@ mod tests {
         let mut outcomes = Vec::new();
         for _ in 0..20_000 {
             let lambda: f64 = rng.gen_range(0.5..12.0);
-            let observed: f64 = Poisson::new(lambda).expect("positive rate").sample(&mut rng);
+            let observed: f64 = Poisson::new(lambda)
+                .expect("positive rate")
+                .sample(&mut rng);
             let pmf = poisson_pmf(scale * lambda, 80);
             probs.push(exceedance_probability(&pmf, 5));
             outcomes.push(observed >= 5.0);

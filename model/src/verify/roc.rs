@@ -115,7 +115,9 @@ mod tests {
     #[test]
     fn trapezoid_area_equals_the_mann_whitney_statistic() {
         let probs = [0.1, 0.4, 0.35, 0.8, 0.4, 0.1, 0.65, 0.2, 0.4, 0.9, 0.05];
-        let outcomes = [false, true, false, true, false, true, true, false, true, true, false];
+        let outcomes = [
+            false, true, false, true, false, true, true, false, true, true, false,
+        ];
         let curve = roc_curve(&probs, &outcomes).expect("ok");
         assert!((curve.area - mann_whitney(&probs, &outcomes)).abs() < 1e-15);
     }
@@ -124,7 +126,10 @@ mod tests {
     fn one_class_is_an_error() {
         assert!(matches!(
             roc_curve(&[0.2, 0.3], &[true, true]),
-            Err(VerifyError::NoContrast { events: 2, non_events: 0 })
+            Err(VerifyError::NoContrast {
+                events: 2,
+                non_events: 0
+            })
         ));
     }
 }

@@ -60,7 +60,10 @@ impl ContingencyTable {
     /// False-alarm rate `F = false alarms / (false alarms + correct negatives)`; `None`
     /// without non-events.
     pub fn false_alarm_rate(&self) -> Option<f64> {
-        ratio(self.false_alarms, self.false_alarms + self.correct_negatives)
+        ratio(
+            self.false_alarms,
+            self.false_alarms + self.correct_negatives,
+        )
     }
 
     /// SEDI; `None` when `H` or `F` is undefined, 0 or 1 (a logarithm would be infinite).
@@ -118,7 +121,10 @@ impl UpperDecileEvent {
     pub fn table<'a>(&self, cases: impl IntoIterator<Item = (&'a [f64], u32)>) -> ContingencyTable {
         let mut table = ContingencyTable::default();
         for (pmf, observed) in cases {
-            table.record(self.probability(pmf) > self.base_rate, self.happened(observed));
+            table.record(
+                self.probability(pmf) > self.base_rate,
+                self.happened(observed),
+            );
         }
         table
     }

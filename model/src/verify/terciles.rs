@@ -22,7 +22,9 @@
 //! The ranked probability score (Epstein 1969, J. Appl. Meteor. 8; Murphy 1971, J. Appl.
 //! Meteor. 10) over `K = 3` ordered categories is the sum over the first `K - 1` boundaries
 //! of the squared difference between the forecast's and the observation's cumulative
-//! probabilities, divided by `K - 1 = 2` so that it lies in `[0, 1]`.
+//! probabilities, divided by `K - 1 = 2` so that it lies in `[0, 1]`. The ranked probability
+//! skill score is `RPSS = 1 - RPS / RPS_reference` ([`super::skill_score`]); the
+//! normalisation cancels in it.
 
 use super::{QUANTILE_TOLERANCE, VerifyError, empirical_pmf, validate_pmf};
 
@@ -263,7 +265,10 @@ mod tests {
             vec![1.0],
             vec![0.05, 0.1, 0.2, 0.3, 0.2, 0.1, 0.05],
         ] {
-            assert!(close(expected_self_rps(&reference), 2.0 / 9.0), "{reference:?}");
+            assert!(
+                close(expected_self_rps(&reference), 2.0 / 9.0),
+                "{reference:?}"
+            );
         }
     }
 
