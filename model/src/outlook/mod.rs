@@ -14,7 +14,7 @@
 //! equal-weight mixture of truncated count pmfs), [`predictive`] (scenario x draw mixture of
 //! a model), [`references`]
 //! (1991-2020 climatology and trend-only models), [`explain`] (driver effects in words) and
-//! [`cautions`].
+//! [`cautions`](mod@cautions).
 
 pub mod cautions;
 pub mod explain;
