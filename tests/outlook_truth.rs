@@ -26,13 +26,20 @@ use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
 
-use tidetally_model::drivers::{EnsoForecast, ForecastContent, ModelMembers};
+use tidetally_model::drivers::{
+    CategoryProbabilities, EnsoForecast, ForecastContent, ModelMembers,
+};
 use tidetally_model::fit::{self, FitOptions, PreparedGauge};
 use tidetally_model::gauge::GaugeConfig;
 use tidetally_model::glm::{self, FamilyRequest, GlmSpec};
 use tidetally_model::outlook::{self, OutlookOptions};
 
-const GAUGES: [&str; 4] = ["port-tamsin", "wrenmouth-inlet", "saltlow-sound", "corrin-quay"];
+const GAUGES: [&str; 4] = [
+    "port-tamsin",
+    "wrenmouth-inlet",
+    "saltlow-sound",
+    "corrin-quay",
+];
 
 fn demo() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data")
@@ -91,8 +98,8 @@ fn fitted_rate_ratios_cover_the_generators_effects_at_every_gauge() {
     for id in GAUGES {
         let prepared = prepared(id);
         let model = fit::fit_gauge(&prepared, "DJF", &FitOptions::default()).unwrap();
-        let design = fit::gauge_design(&prepared, "DJF", &FitOptions::default())
-            .select(&model.predictors);
+        let design =
+            fit::gauge_design(&prepared, "DJF", &FitOptions::default()).select(&model.predictors);
         // Independent check of the counting: our season table against the generator's.
         let mut expected = Vec::new();
         for row in &design.rows {
@@ -106,7 +113,12 @@ fn fitted_rate_ratios_cover_the_generators_effects_at_every_gauge() {
                 .predictors
                 .iter()
                 .enumerate()
-                .map(|(j, p)| (p.as_str().to_owned(), design.rows.iter().map(|r| r.x[j]).collect()))
+                .map(|(j, p)| {
+                    (
+                        p.as_str().to_owned(),
+                        design.rows.iter().map(|r| r.x[j]).collect(),
+                    )
+                })
                 .collect(),
             offset: None,
         }
@@ -138,8 +150,14 @@ fn fitted_rate_ratios_cover_the_generators_effects_at_every_gauge() {
             }
         }
     }
-    assert!(intervals >= 15, "only {intervals} driver effects were checked");
-    assert!(misses.len() <= 2, "plain 95% intervals missed {misses:?} of {intervals}");
+    assert!(
+        intervals >= 15,
+        "only {intervals} driver effects were checked"
+    );
+    assert!(
+        misses.len() <= 2,
+        "plain 95% intervals missed {misses:?} of {intervals}"
+    );
 }
 
 #[test]
@@ -147,7 +165,11 @@ fn every_demo_gauge_gets_a_complete_reproducible_outlook_for_2026_djf() {
     for id in GAUGES {
         let prepared = prepared(id);
         let target = prepared.default_target().unwrap();
-        assert_eq!(target.label(), "2026-DJF", "{id}: the record ends 2026-11-30");
+        assert_eq!(
+            target.label(),
+            "2026-DJF",
+            "{id}: the record ends 2026-11-30"
+        );
         let model = fit::fit_gauge(&prepared, "DJF", &FitOptions::default()).unwrap();
         let options = OutlookOptions {
             draws: 400,
@@ -174,7 +196,12 @@ fn every_demo_gauge_gets_a_complete_reproducible_outlook_for_2026_djf() {
         // The short record (first full DJF about 2003) cannot cover 24 of 1991-2020's
         // seasons, so its "normal" falls back to the whole record and says so.
         let fallback = a.terciles[0].name.starts_with("whole-record");
-        assert_eq!(fallback, id == "corrin-quay", "{id}: {}", a.terciles[0].name);
+        assert_eq!(
+            fallback,
+            id == "corrin-quay",
+            "{id}: {}",
+            a.terciles[0].name
+        );
         assert_eq!(fallback, a.cautions.iter().any(|c| c.contains("1991-2020")));
     }
 }
@@ -228,8 +255,7 @@ fn an_outlook_equal_to_its_reference_is_a_third_in_each_tercile() {
     let prepared = prepared("port-tamsin");
     let target = prepared.default_target().unwrap();
     let family = fit::family_request(prepared.config.model.family);
-    let climatology =
-        outlook::references::climatology(&prepared.seasons, "DJF", family).unwrap();
+    let climatology = outlook::references::climatology(&prepared.seasons, "DJF", family).unwrap();
     let gauge = outlook::GaugeFacts {
         id: "port-tamsin".into(),
         name: prepared.config.name.clone(),
@@ -261,4 +287,48 @@ fn an_outlook_equal_to_its_reference_is_a_third_in_each_tercile() {
     for p in [t.below, t.near, t.above] {
         assert!((p - 1.0 / 3.0).abs() < 1e-9, "{t:?}");
     }
+}
+
+/// A forecast given as category probabilities: a certain La Nina draws every ENSO scenario
+/// from past La Nina seasons (index at or below -0.5, common practice), and at a gauge where
+/// El Nino raises sea level it lowers the expected count below a certain El Nino's.
+#[test]
+fn category_probability_forecasts_draw_enso_from_past_seasons_of_the_category() {
+    let mut prepared = prepared("port-tamsin");
+    let target = prepared.default_target().unwrap();
+    let model = fit::fit_gauge(&prepared, "DJF", &FitOptions::default()).unwrap();
+    let issued = prepared.drivers.enso_forecast.as_ref().unwrap().issued;
+    let mut outlook_with = |la_nina: f64, el_nino: f64| {
+        prepared.drivers.enso_forecast = Some(EnsoForecast {
+            season: target.clone(),
+            issued,
+            content: ForecastContent::Probabilities(CategoryProbabilities {
+                la_nina,
+                neutral: 1.0 - la_nina - el_nino,
+                el_nino,
+            }),
+        });
+        let options = OutlookOptions {
+            draws: 500,
+            ..OutlookOptions::default()
+        };
+        outlook::build(&model, &prepared, &target, &options).unwrap()
+    };
+    let cold = outlook_with(1.0, 0.0);
+    let warm = outlook_with(0.0, 1.0);
+    let enso = |o: &outlook::Outlook| {
+        o.drivers
+            .iter()
+            .find(|d| d.name == fit::Predictor::Enso)
+            .cloned()
+            .unwrap()
+    };
+    assert!(enso(&cold).value_p90 <= -0.5, "{:?}", enso(&cold));
+    assert!(enso(&warm).value_p10 >= 0.5, "{:?}", enso(&warm));
+    assert!(cold.mean < warm.mean, "{} vs {}", cold.mean, warm.mean);
+    assert!(
+        cold.explanation
+            .iter()
+            .any(|s| s.starts_with("La Nina expected (100%"))
+    );
 }
