@@ -205,15 +205,30 @@ fn enso_generator(
                 .drivers
                 .enso_forecast
                 .as_ref()
-                .filter(|f| f.season == *target)
-                .ok_or_else(|| OutlookError::NoEnsoForecast {
-                    target: target.label(),
-                    available: prepared
-                        .drivers
-                        .enso_forecast
-                        .as_ref()
-                        .map(|f| f.season.label()),
-                })?;
+                .filter(|f| f.season == *target);
+            // A past target whose own ENSO is already in the index needs no forecast.
+            let observed = prepared
+                .drivers
+                .enso
+                .as_ref()
+                .and_then(|series| series.seasonal(target, EnsoTiming::Concurrent).ok());
+            if let (None, Some(observed)) = (forecast, observed) {
+                let generator =
+                    ScenarioGenerator::with_known_enso(observed.value, past, needs, resampling)
+                        .map_err(OutlookError::Scenario)?;
+                return Ok((
+                    generator,
+                    format!("observed ENSO index of {target} (already in the index)"),
+                ));
+            }
+            let forecast = forecast.ok_or_else(|| OutlookError::NoEnsoForecast {
+                target: target.label(),
+                available: prepared
+                    .drivers
+                    .enso_forecast
+                    .as_ref()
+                    .map(|f| f.season.label()),
+            })?;
             let source = match &forecast.content {
                 ForecastContent::Members(models) => format!(
                     "ENSO forecast issued {}: {} members from {} models, pooled with equal \
