@@ -173,6 +173,9 @@ pub struct OutlookArgs {
     /// Seed of the random streams (the same seed gives the same outlook).
     #[arg(long, default_value_t = tidetally_model::outlook::DEFAULT_SEED)]
     pub seed: u64,
+    /// Resample MJO and wind only from past seasons of each scenario's ENSO category.
+    #[arg(long)]
+    pub condition_on_enso: bool,
 }
 
 /// Runs one parsed command.

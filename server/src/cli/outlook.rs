@@ -1,5 +1,5 @@
-//! `tidetally outlook --gauge FILE [--season LABEL] [--draws N] [--seed S]`: the seasonal
-//! outlook of flood days for one gauge, as JSON.
+//! `tidetally outlook --gauge FILE [--season LABEL] [--draws N] [--seed S]
+//! [--condition-on-enso]`: the seasonal outlook of flood days for one gauge, as JSON.
 
 use anyhow::Context;
 use tidetally_model::fit::{self, FitOptions};
@@ -21,6 +21,7 @@ pub(super) fn run(args: super::OutlookArgs) -> anyhow::Result<()> {
     let options = OutlookOptions {
         draws: args.draws,
         seed: args.seed,
+        condition_on_enso: args.condition_on_enso,
         ..OutlookOptions::default()
     };
     let outlook = outlook::build(&model, &prepared, &target, &options)?;
