@@ -58,6 +58,10 @@ pub struct ServeArgs {
     /// Address to listen on (default 127.0.0.1:8080).
     #[arg(long)]
     pub addr: Option<String>,
+    /// TOML config file (keys: addr, db, data, token, cors_origins, log_format,
+    /// request_timeout_secs, cache_max_age_secs); environment variables and flags override it.
+    #[arg(long)]
+    pub config: Option<PathBuf>,
 }
 
 /// Arguments of the per-gauge pipeline commands.
@@ -194,8 +198,19 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
 }
 
 /// Prints a value as pretty JSON on stdout.
+#[allow(dead_code, reason = "used by the pipeline commands as they land")]
 pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
-    let text = serde_json::to_string_pretty(value)?;
-    println!("{text}");
-    Ok(())
+    let mut text = serde_json::to_string_pretty(value)?;
+    text.push('\n');
+    print_text(&text)
+}
+
+/// Writes text to stdout; a reader that closes the pipe early (`| head`) is not an error.
+pub(crate) fn print_text(text: &str) -> anyhow::Result<()> {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe => Err(err.into()),
+        _ => Ok(()),
+    }
 }

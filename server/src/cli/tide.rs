@@ -4,12 +4,13 @@
 //! reader here until the shared ingest module offers one; levels stay in the file's units.
 
 use std::fs::File;
-use std::io::{BufRead, BufReader, Read};
+use std::io::BufReader;
 use std::path::Path;
 
 use anyhow::{Context, bail};
 use chrono::{DateTime, SecondsFormat, Utc};
 use serde::{Deserialize, Serialize};
+use tidetally_model::ingest::{self, IngestOptions};
 use tidetally_model::tide::{
     AnalysisParams, ConstituentValue, Datums, DatumsParams, Epoch, TideModel,
     derived_minor_threshold,
@@ -319,66 +320,21 @@ pub(super) fn datums(args: DatumsArgs) -> anyhow::Result<()> {
     print_json(&out)
 }
 
-/// Reads a water-level CSV (`time,level[,flag]`, plain or gzip by content): times as unix
-/// seconds sorted ascending, levels in the file's units with empty or `NaN` as missing.
-/// Errors name the file, line and field; duplicate times name both lines.
+/// Reads a water-level CSV (`time,level[,flag]`, plain or gzip by content) with the model's
+/// ingest parser: times as unix seconds sorted ascending, levels in the file's own units
+/// (no conversion, so amplitudes come out in the units of the input) with empty or `NaN` as
+/// missing. Errors name the file, line and field; duplicate times name both lines.
 fn read_levels(path: &Path) -> anyhow::Result<(Vec<i64>, Vec<f64>)> {
     let file = File::open(path).with_context(|| format!("cannot open {}", path.display()))?;
-    let mut buffered = BufReader::new(file);
-    let gzip = buffered
-        .fill_buf()
-        .with_context(|| format!("cannot read {}", path.display()))?
-        .starts_with(&[0x1f, 0x8b]);
-    let input: Box<dyn Read> = if gzip {
-        Box::new(flate2::read::MultiGzDecoder::new(buffered))
-    } else {
-        Box::new(buffered)
-    };
-    let mut reader = csv::ReaderBuilder::new()
-        .trim(csv::Trim::All)
-        .flexible(true)
-        .from_reader(input);
-    let name = path.display();
-    let headers = reader
-        .headers()
-        .with_context(|| format!("{name}: line 1: cannot read the header"))?
-        .clone();
-    let column = |want: &str| headers.iter().position(|h| h.eq_ignore_ascii_case(want));
-    let (Some(time_col), Some(level_col)) = (column("time"), column("level")) else {
-        bail!("{name}: line 1: header must name `time` and `level` columns, found {headers:?}");
-    };
-    let mut rows: Vec<(i64, f64, u64)> = Vec::new();
-    for record in reader.records() {
-        let record = record.with_context(|| format!("{name}: malformed CSV"))?;
-        let line = record.position().map_or(0, |p| p.line());
-        let time_text = record
-            .get(time_col)
-            .with_context(|| format!("{name}: line {line}: field time is missing"))?;
-        let time =
-            parse_time(time_text).with_context(|| format!("{name}: line {line}: field time"))?;
-        let level_text = record.get(level_col).unwrap_or("");
-        let level = if level_text.is_empty() || level_text.eq_ignore_ascii_case("nan") {
-            f64::NAN
-        } else {
-            level_text.parse::<f64>().with_context(|| {
-                format!("{name}: line {line}: field level: {level_text:?} is not a number")
-            })?
-        };
-        rows.push((time, level, line));
+    let series = ingest::read_levels(
+        BufReader::new(file),
+        &IngestOptions::default(),
+        &path.display().to_string(),
+    )?;
+    if series.times.is_empty() {
+        bail!("{}: no readings", path.display());
     }
-    rows.sort_by_key(|r| r.0);
-    if let Some(pair) = rows.windows(2).find(|w| w[0].0 == w[1].0) {
-        bail!(
-            "{name}: lines {} and {}: duplicate time {}",
-            pair[0].2.min(pair[1].2),
-            pair[0].2.max(pair[1].2),
-            iso(pair[0].0)
-        );
-    }
-    if rows.is_empty() {
-        bail!("{name}: no readings");
-    }
-    Ok(rows.into_iter().map(|(t, l, _)| (t, l)).unzip())
+    Ok((series.times, series.levels_m))
 }
 
 #[cfg(test)]
@@ -426,10 +382,10 @@ mod tests {
         let zipped = temp_file("zipped.csv", &gz.finish().expect("in memory"));
         let a = read_levels(&plain).expect("reads");
         let b = read_levels(&zipped).expect("reads");
-        assert_eq!(a.0, vec![1_262_304_000, 1_262_307_600, 1_262_322_000]);
-        assert_eq!(a.0, b.0);
-        assert!(a.1[2].is_nan() && b.1[2].is_nan());
-        assert_eq!(&a.1[..2], &[1.5, 2.0]);
+        // The missing reading (NaN at 05:00 UTC) is left out; the rest come sorted.
+        assert_eq!(a.0, vec![1_262_304_000, 1_262_307_600]);
+        assert_eq!(a, b);
+        assert_eq!(a.1, vec![1.5, 2.0]);
     }
 
     #[test]
@@ -443,7 +399,7 @@ mod tests {
         );
         let err = format!("{:#}", read_levels(&bad_time).expect_err("bad time"));
         assert!(
-            err.contains("line 3") && err.contains("field time"),
+            err.contains("line 3") && err.contains("field `time`"),
             "{err}"
         );
         let dup = temp_file(
