@@ -21,7 +21,8 @@ use tidetally_model::drivers::EnsoTiming;
 use tidetally_model::fit::{DriverValue, Predictor, SeasonData};
 use tidetally_model::glm::FamilyRequest;
 use tidetally_model::hindcast::{
-    HindcastOptions, HindcastSetup, ModelKind, SeasonHindcast, VerdictKind, hindcast_season,
+    ConcurrentEnso, HindcastOptions, HindcastSetup, ModelKind, SeasonHindcast, VerdictKind,
+    hindcast_season,
 };
 use tidetally_model::season::{Season, SeasonSpec};
 
@@ -82,18 +83,39 @@ fn run(
     draws: usize,
     seed: u64,
 ) -> SeasonHindcast {
+    run_with(
+        seasons,
+        predictors,
+        draws,
+        seed,
+        EnsoTiming::Preceding,
+        ConcurrentEnso::Observed,
+        FamilyRequest::Poisson,
+    )
+}
+
+fn run_with(
+    seasons: &[SeasonData],
+    predictors: &[Predictor],
+    draws: usize,
+    seed: u64,
+    enso_timing: EnsoTiming,
+    concurrent_enso: ConcurrentEnso,
+    family: FamilyRequest,
+) -> SeasonHindcast {
     let setup = HindcastSetup {
         gauge_name: "Synthetic gauge",
         seasons,
         season_name: "DJF",
         predictors,
-        family: FamilyRequest::Poisson,
-        enso_timing: EnsoTiming::Preceding,
+        family,
+        enso_timing,
         exceed_days: &[3, 6, 10],
     };
     let options = HindcastOptions {
         draws,
         seed,
+        concurrent_enso,
         ..HindcastOptions::default()
     };
     hindcast_season(&setup, &options).unwrap()
@@ -151,6 +173,45 @@ fn strong_driver_effects_show_skill() {
             assert!(crpss.estimate.unwrap() < crpss.upper.unwrap());
         }
     }
+}
+
+#[test]
+fn a_driver_not_known_at_issue_time_gives_no_skill() {
+    // The same strong ENSO effect, but as the season's own ENSO: resampled from the training
+    // seasons, it tells the forecast nothing about the season, so the skill must vanish;
+    // standing in the observed value (a perfect ENSO forecast) keeps it, with the caveat.
+    // The family is `auto`: a mixture over resampled ENSO values is overdispersed, like the
+    // counts' marginal distribution, so it would beat a Poisson climatology on dispersion
+    // alone; a negative-binomial climatology has that too.
+    let truth = Truth {
+        base_rate: 5.0 / 90.0,
+        effects: [0.6, 0.0, 0.0],
+    };
+    let seasons = simulate(&truth, 45, 2000);
+    let blind = run_with(
+        &seasons,
+        &[Predictor::Enso],
+        100,
+        0,
+        EnsoTiming::Concurrent,
+        ConcurrentEnso::Resampled,
+        FamilyRequest::Auto,
+    );
+    let v = blind.verdict(ModelKind::Climatology).unwrap();
+    assert_eq!(v.verdict, VerdictKind::NoBetter, "{}", v.sentence);
+    assert!(!blind.issue_time[0].known);
+    let perfect = run_with(
+        &seasons,
+        &[Predictor::Enso],
+        100,
+        0,
+        EnsoTiming::Concurrent,
+        ConcurrentEnso::Observed,
+        FamilyRequest::Auto,
+    );
+    let v = perfect.verdict(ModelKind::Climatology).unwrap();
+    assert_eq!(v.verdict, VerdictKind::Skilful, "{}", v.sentence);
+    assert!(v.sentence.contains("forecast perfectly"));
 }
 
 #[test]

@@ -7,7 +7,7 @@
 //! 2. [`baselines`]: the driver model, the climatology (intercept and exposure only) and the
 //!    trend-only model are refitted on the same training seasons, each with the family its
 //!    full-record fit chose (so a refit never re-runs the family test);
-//! 3. [`predict`](mod@predict): each forecast is the full predictive distribution as the
+//! 3. `predict`: each forecast is the full predictive distribution as the
 //!    outlook builds it, a mixture over parameter draws and driver scenarios, with the drivers
 //!    as they were known at issue time (see [`baselines::known_at_issue`]);
 //! 4. [`scoring`]: every score of [`crate::verify`] is computed once per case; the bootstrap
@@ -54,6 +54,11 @@ pub const DEFAULT_RESAMPLES: usize = 1000;
 
 /// Seed of a hindcast's random streams unless asked otherwise.
 pub const DEFAULT_SEED: u64 = 20_261_202;
+
+/// Appended to a verdict when the model uses the season's own ENSO and the hindcast stands
+/// the observed value in for its forecast.
+pub const PERFECT_ENSO_CAVEAT: &str = " The hindcast uses each season's ENSO as later \
+    observed, as if it had been forecast perfectly; a real ENSO forecast does somewhat worse.";
 
 /// Why a hindcast could not be run.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -464,6 +469,12 @@ pub fn hindcast_season(
         EnsoTiming::Preceding => true,
         EnsoTiming::Concurrent => options.concurrent_enso == ConcurrentEnso::Observed,
     };
+    let perfect_enso = setup.enso_timing == EnsoTiming::Concurrent
+        && options.concurrent_enso == ConcurrentEnso::Observed
+        && setup.predictors.contains(&Predictor::Enso);
+    if perfect_enso {
+        notes.push(PERFECT_ENSO_CAVEAT.trim_start().to_owned());
+    }
     let issue_time = setup
         .predictors
         .iter()
@@ -501,12 +512,12 @@ pub fn hindcast_season(
                     .map(|e| (s.scheme, e))
             })
             .collect();
-        verdicts.push(verdict::overall_verdict(
-            setup.gauge_name,
-            &full.season_name,
-            reference,
-            &entries,
-        ));
+        let mut report =
+            verdict::overall_verdict(setup.gauge_name, &full.season_name, reference, &entries);
+        if perfect_enso {
+            report.sentence.push_str(PERFECT_ENSO_CAVEAT);
+        }
+        verdicts.push(report);
     }
     Ok(SeasonHindcast {
         season_name: full.season_name.clone(),
