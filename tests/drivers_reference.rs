@@ -326,6 +326,108 @@ fn trend_recovers_rate_and_acceleration_with_honest_intervals() {
     );
 }
 
+/// Checks a value against a reference to a relative tolerance.
+fn check_close(name: &str, got: f64, want: f64, rel: f64) {
+    assert!(
+        (got - want).abs() <= rel * want.abs().max(1e-12),
+        "{name}: {got} vs reference {want}"
+    );
+}
+
+#[test]
+fn trend_matches_statsmodels_ols_with_ar1_inflation() {
+    // Fixture made by tests/reference/drivers_trend_statsmodels.py (statsmodels OLS and acf,
+    // scipy t quantile; versions recorded in the file). Tolerances: coefficients and standard
+    // errors to 1e-8 relative (two least-squares solvers in double precision on a
+    // well-conditioned, centred design); the t quantile to 1e-6 (statrs vs scipy inverse CDF).
+    let text = std::fs::read_to_string(fixture("trend-statsmodels.json")).unwrap();
+    let reference: serde_json::Value = serde_json::from_str(&text).unwrap();
+    let num = |v: &serde_json::Value| v.as_f64().unwrap();
+    let months: Vec<MonthlyMeanLevel> = reference["months"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|m| {
+            let (year, month) = (
+                m["year"].as_i64().unwrap() as i32,
+                m["month"].as_u64().unwrap() as u32,
+            );
+            // Our month mid-time equals the script's (same calendar arithmetic).
+            check_close(
+                "month time",
+                month_mid_year(year, month).unwrap(),
+                num(&m["t"]),
+                1e-14,
+            );
+            MonthlyMeanLevel {
+                year,
+                month,
+                mean_m: num(&m["mean_m"]),
+                readings: 700,
+            }
+        })
+        .collect();
+    let fit = fit_trend(
+        &months,
+        TrendShape::Quadratic,
+        SeasonalCycle::AnnualSemiannual,
+    )
+    .unwrap();
+    check_close(
+        "centre",
+        fit.centre_year,
+        num(&reference["centre_year"]),
+        1e-14,
+    );
+    let p = fit.coefficients.len();
+    for (i, want) in reference["coefficients"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .enumerate()
+    {
+        check_close(
+            &format!("coefficient {i}"),
+            fit.coefficients[i],
+            num(want),
+            1e-8,
+        );
+    }
+    check_close(
+        "r1",
+        fit.lag1_autocorrelation,
+        num(&reference["lag1_autocorrelation"]),
+        1e-8,
+    );
+    check_close(
+        "n_eff",
+        fit.effective_months,
+        num(&reference["effective_months"]),
+        1e-8,
+    );
+    for (i, want) in reference["inflated_std_errors"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .enumerate()
+    {
+        check_close(
+            &format!("std error {i}"),
+            fit.covariance[i * p + i].sqrt(),
+            num(want),
+            1e-8,
+        );
+    }
+    let pred = &reference["prediction"];
+    let level = fit.level_at(num(&pred["year"]));
+    check_close("level", level.value, num(&pred["value"]), 1e-8);
+    check_close("level SE", level.std_error, num(&pred["std_error"]), 1e-8);
+    check_close("dof", level.dof, num(&pred["dof"]), 1e-8);
+    let (lo, hi) = level.interval(0.95);
+    check_close("interval low", lo, num(&pred["interval95"][0]), 1e-6);
+    check_close("interval high", hi, num(&pred["interval95"][1]), 1e-6);
+}
+
 #[test]
 fn seasonal_cycle_left_in_passes_for_autocorrelation() {
     let mut rng = ChaCha8Rng::seed_from_u64(99);
@@ -371,6 +473,11 @@ fn equal_weight_per_model_not_per_member() {
 fn forecast_files_are_validated() {
     let p = forecast_fixture("forecast-probabilities.json");
     assert_eq!(p.season.label(), "2026-DJF");
+    assert!(p.check_season(&"2026-DJF".parse().unwrap()).is_ok());
+    assert!(matches!(
+        p.check_season(&"2027-DJF".parse().unwrap()),
+        Err(ScenarioError::WrongSeason { .. })
+    ));
     assert_eq!(p.issued, NaiveDate::from_ymd_opt(2026, 11, 15).unwrap());
     let cases = [
         (

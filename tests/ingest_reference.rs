@@ -292,3 +292,64 @@ missing_sentinel = -99999.0
     assert!(record.summary.missing > 500);
     assert!(!record.summary.was_sorted);
 }
+
+// The demo generator counts flood days from the files it writes with its own code
+// (demo-data/truth-expected-counts.csv); our reading of the same files must agree on every
+// season of every demo gauge. Synthetic truth: the demo coastline is invented.
+#[test]
+fn demo_gauges_agree_with_the_generators_own_count() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data");
+    let truth =
+        std::fs::read_to_string(root.join("truth-expected-counts.csv")).expect("demo truth table");
+    let mut lines = truth.lines();
+    let header: Vec<&str> = lines.next().expect("header").split(',').collect();
+    let column = |name: &str| {
+        header
+            .iter()
+            .position(|h| *h == name)
+            .unwrap_or_else(|| panic!("truth table lacks {name}"))
+    };
+    let (g, s, o, f) = (
+        column("gauge"),
+        column("season"),
+        column("observed_days"),
+        column("flood_days"),
+    );
+    let mut expected: HashMap<String, HashMap<String, (u32, u32)>> = HashMap::new();
+    for line in lines {
+        let fields: Vec<&str> = line.split(',').collect();
+        let counts = (
+            fields[f].parse().expect("flood_days"),
+            fields[o].parse().expect("observed_days"),
+        );
+        expected
+            .entry(fields[g].to_owned())
+            .or_default()
+            .insert(fields[s].to_owned(), counts);
+    }
+    assert!(expected.len() >= 2, "demo gauges present");
+    for (gauge, seasons) in &expected {
+        let record = load(&root.join("gauges").join(format!("{gauge}.toml")));
+        for row in &record.seasons.rows {
+            if let Some(&want) = seasons.get(&row.label) {
+                assert_eq!(
+                    (row.flood_days, row.observed_days),
+                    want,
+                    "{gauge} {}",
+                    row.label
+                );
+            }
+        }
+        let covered = record
+            .seasons
+            .rows
+            .iter()
+            .filter(|r| seasons.contains_key(&r.label))
+            .count();
+        assert_eq!(
+            covered,
+            seasons.len(),
+            "{gauge}: every truth season is in our table"
+        );
+    }
+}

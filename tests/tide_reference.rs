@@ -44,7 +44,11 @@ fn read_levels(name: &str) -> (Vec<i64>, Vec<f64>) {
     for line in text.lines().skip(1) {
         let (t, x) = line.split_once(',').expect("two columns");
         times.push(parse_utc(t));
-        levels.push(if x.is_empty() { f64::NAN } else { x.parse().expect("a number") });
+        levels.push(if x.is_empty() {
+            f64::NAN
+        } else {
+            x.parse().expect("a number")
+        });
     }
     (times, levels)
 }
@@ -75,13 +79,20 @@ fn constituent_speeds_and_doodson_numbers_match_schureman() {
         ("Q1", 13.398_660_9, "135.655"),
         ("M4", 57.968_208_4, "455.555"),
         ("MS4", 58.984_104_2, "473.555"),
-        ("Sa", 0.041_068_6, "056.555"),
+        // Sa as h - p1 (Doodson 1921, the IHO list, Foreman 1977): 0.0410667 deg/h;
+        // Schureman's Table 2 gives h alone, 0.0410686.
+        ("Sa", 0.041_066_7, "056.554"),
         ("Ssa", 0.082_137_3, "057.555"),
     ];
     for (name, speed, doodson) in table {
         let c = by_name(name).expect("in the standard table");
         // 1e-7 deg/h: the table's last digit (rounding contributes up to 5e-8).
-        check(&format!("{name} speed"), c.speed_deg_per_hour(), speed, 1e-7);
+        check(
+            &format!("{name} speed"),
+            c.speed_deg_per_hour(),
+            speed,
+            1e-7,
+        );
         assert_eq!(c.doodson_number(), doodson, "{name} Doodson number");
     }
 }
@@ -114,7 +125,11 @@ fn nodal_factors_at_node_extremes_match_schureman() {
     let at_zero = NodalAngles::new(0.0, 0.0);
     let at_180 = NodalAngles::new(180.0, 0.0);
     let f = |a: &NodalAngles, n: &str| a.factor(by_name(n).expect("known"));
-    for (name, f0, f180) in [("M2", 0.963, 1.038), ("K1", 1.113, 0.882), ("O1", 1.183, 0.806)] {
+    for (name, f0, f180) in [
+        ("M2", 0.963, 1.038),
+        ("K1", 1.113, 0.882),
+        ("O1", 1.183, 0.806),
+    ] {
         let (fz, uz) = f(&at_zero, name);
         let (fh, uh) = f(&at_180, name);
         check(&format!("f({name}) at N=0"), fz, f0, 0.0015);
@@ -136,12 +151,23 @@ fn nodal_factors_at_node_extremes_match_schureman() {
 }
 
 #[test]
-fn analysis_agrees_with_utide() {
+fn analysis_agrees_with_utide_near_node_zero() {
+    // 2005: N near 0 deg, f(M2) near its minimum and f(K1), f(O1) near their maxima.
+    agrees_with_utide(2005);
+}
+
+#[test]
+fn analysis_agrees_with_utide_near_node_180() {
+    // 1997: N near 180 deg, the opposite extreme of the nodal cycle.
+    agrees_with_utide(1997);
+}
+
+fn agrees_with_utide(year: i32) {
     let reference: serde_json::Value = serde_json::from_str(
-        &std::fs::read_to_string(fixture("utide-2005.json")).expect("fixture present"),
+        &std::fs::read_to_string(fixture(&format!("utide-{year}.json"))).expect("fixture present"),
     )
     .expect("valid JSON");
-    let (times, levels) = read_levels("synthetic-2005.csv");
+    let (times, levels) = read_levels(&format!("synthetic-{year}.csv"));
     // utide's names for ours: the same except the long-period ones' capitals and lambda2.
     let ours = |utide: &str| -> String {
         match utide {
@@ -163,8 +189,17 @@ fn analysis_agrees_with_utide() {
         constituents: Some(names.clone()),
         ..AnalysisParams::default()
     };
-    let model: TideModel = params.check().expect("valid").fit(&times, &levels).expect("fits");
-    check("mean", model.mean, reference["mean"].as_f64().expect("mean"), 5e-4);
+    let model: TideModel = params
+        .check()
+        .expect("valid")
+        .fit(&times, &levels)
+        .expect("fits");
+    check(
+        "mean",
+        model.mean,
+        reference["mean"].as_f64().expect("mean"),
+        5e-4,
+    );
     // utide (like the t_tide lineage it follows) applies no nodal correction to Mm and Mf:
     // its amplitude is our f * A and its phase our g - u, taken at the record's middle.
     let middle = NodalAngles::at(&Astro::at(model.reference_time as f64));
@@ -172,11 +207,11 @@ fn analysis_agrees_with_utide() {
         let ua = entry["amplitude"].as_f64().expect("amplitude");
         let ug = entry["phase_deg"].as_f64().expect("phase");
         let c = model.constituent(name).expect("fitted");
-        let (amp, phase) = if name == "Mm" || name == "Mf" {
+        let (amp, phase, amp_ci) = if name == "Mm" || name == "Mf" {
             let (f, u) = middle.factor(c.constituent);
-            (f * c.amplitude, c.phase_deg - u)
+            (f * c.amplitude, c.phase_deg - u, f * c.amplitude_ci95)
         } else {
-            (c.amplitude, c.phase_deg)
+            (c.amplitude, c.phase_deg, c.amplitude_ci95)
         };
         // Tolerances: utide applies Foreman's (1977) satellite nodal corrections, we apply
         // Schureman's (1958) closed forms; they differ by up to ~1% in f and ~1 deg in u for
@@ -193,17 +228,18 @@ fn analysis_agrees_with_utide() {
             "{name} phase: ours {phase} utide {ug} (tolerance {phase_tol})"
         );
         // Interval widths: both are linearized intervals from a band-averaged residual
-        // spectrum, with different band definitions; they should agree within a factor 2.
+        // spectrum, with different band definitions; they should agree within a factor 2 for
+        // the constituents in the signal (> 1 cm). Below that, Schureman's and Foreman's
+        // nodal factors for small terms such as OO1 differ by up to a third and scale the
+        // intervals with them.
         let ua_ci = entry["amplitude_ci95"].as_f64().expect("ci");
-        let ratio = c.amplitude_ci95 / ua_ci;
+        let ratio = amp_ci / ua_ci;
         assert!(
-            (0.5..=2.0).contains(&ratio),
-            "{name} amplitude interval {} vs utide {ua_ci}",
-            c.amplitude_ci95
+            ua <= 0.01 || (0.5..=2.0).contains(&ratio),
+            "{name} amplitude interval {amp_ci} vs utide {ua_ci}"
         );
         println!(
-            "{name:5} A {amp:.4} vs {ua:.4}  g {phase:7.2} vs {ug:7.2}  ci {:.4}/{:.2} vs {:.4}/{:.2}",
-            c.amplitude_ci95,
+            "{name:5} A {amp:.4} vs {ua:.4}  g {phase:7.2} vs {ug:7.2}  ci {amp_ci:.4}/{:.2} vs {:.4}/{:.2}",
             c.phase_ci95_deg,
             entry["amplitude_ci95"].as_f64().unwrap_or(f64::NAN),
             ug_ci
@@ -248,7 +284,11 @@ fn datums_of_a_pure_semidiurnal_tide() {
     check("MSL", d.msl, 0.0, 0.001);
     check("MTL", d.mtl, 0.0, 0.001);
     // About 352 tidal days in 365 days (365 * 24 / 24.8412), less a partial one at the end.
-    assert!((350..=353).contains(&d.tidal_days), "{} tidal days", d.tidal_days);
+    assert!(
+        (350..=353).contains(&d.tidal_days),
+        "{} tidal days",
+        d.tidal_days
+    );
     assert!(d.epoch.describe().contains("record's own period"));
 }
 
@@ -279,15 +319,25 @@ fn modified_range_ratio_reproduces_the_control_when_stations_match() {
     // NOS CO-OPS 2 (2003): MTL/DTL/MSL shift by the control's differences and MN/GT scale by
     // its ratios. A short record identical to the control's concurrent record must come out
     // as the control's epoch datums; one with twice the range gets twice the epoch ranges.
-    let cfg = tidetally_model::tide::DatumsParams::default().check().expect("valid");
-    let (times, levels) = cosines(24 * 60, &[(28.984_104_2, 1.0, 0.0), (15.041_068_6, 0.3, 0.0)]);
+    let cfg = tidetally_model::tide::DatumsParams::default()
+        .check()
+        .expect("valid");
+    let (times, levels) = cosines(
+        24 * 60,
+        &[(28.984_104_2, 1.0, 0.0), (15.041_068_6, 0.3, 0.0)],
+    );
     let concurrent = cfg.compute(&times, &levels).expect("datums");
-    let (t2, l2) = cosines(24 * 365, &[(28.984_104_2, 1.1, 0.0), (15.041_068_6, 0.3, 0.0)]);
+    let (t2, l2) = cosines(
+        24 * 365,
+        &[(28.984_104_2, 1.1, 0.0), (15.041_068_6, 0.3, 0.0)],
+    );
     let mut epoch = cfg.compute(&t2, &l2).expect("datums");
     epoch.msl += 0.1;
     epoch.mtl += 0.1;
     epoch.dtl += 0.1;
-    let same = concurrent.adjust_modified_range_ratio(&concurrent, &epoch).expect("adjusts");
+    let same = concurrent
+        .adjust_modified_range_ratio(&concurrent, &epoch)
+        .expect("adjusts");
     for (name, got, want) in [
         ("MHHW", same.mhhw, epoch.mhhw + 0.1),
         ("MLLW", same.mllw, epoch.mllw + 0.1),
@@ -300,7 +350,9 @@ fn modified_range_ratio_reproduces_the_control_when_stations_match() {
     }
     let doubled: Vec<f64> = levels.iter().map(|x| 2.0 * x).collect();
     let short = cfg.compute(&times, &doubled).expect("datums");
-    let adjusted = short.adjust_modified_range_ratio(&concurrent, &epoch).expect("adjusts");
+    let adjusted = short
+        .adjust_modified_range_ratio(&concurrent, &epoch)
+        .expect("adjusts");
     check("GT of a doubled range", adjusted.gt, 2.0 * epoch.gt, 1e-9);
 }
 

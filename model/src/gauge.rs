@@ -343,7 +343,9 @@ fn toml_position(text: &str, span: Option<std::ops::Range<usize>>) -> String {
     let Some(span) = span else {
         return String::new();
     };
-    let before = &text[..span.start.min(text.len())];
+    let Some(before) = text.get(..span.start) else {
+        return String::new();
+    };
     let line = before.matches('\n').count() + 1;
     let column = before.len() - before.rfind('\n').map_or(0, |i| i + 1) + 1;
     format!(" (line {line}, column {column})")

@@ -8,8 +8,13 @@
 //! - [`read_levels`]: every reading, sorted by time, for tidal analysis.
 //!
 //! Times are ISO 8601 with `Z` or an offset; levels are converted from the declared units to
-//! metres. Empty fields, `NaN` (any case) and the configured sentinel mean "missing".
-//! Duplicate times are an error naming both lines.
+//! metres. Empty fields, `NaN` (any case) and the configured sentinel mean "missing". The
+//! optional `flag` column is accepted and not interpreted. Duplicate times are an error naming
+//! both lines. Times outside the years 1800 to 2200 are taken for typing errors and rejected.
+//!
+//! Speed: common time shapes are computed arithmetically (chrono handles the rest), plain
+//! decimals take an exact fast path (the standard parser handles the rest), and lines are
+//! split in place in a reused buffer; see `model/benches/ingest.rs`.
 
 use std::collections::BTreeMap;
 use std::io::{BufRead, Read};
@@ -226,48 +231,74 @@ pub fn summarize(
     options: &IngestOptions,
     source_name: &str,
 ) -> Result<LevelSummary, IngestError> {
-    let offset = i64::from(options.utc_offset.local_minus_utc());
-    let mut days = DayTotals::default();
-    let mut checker = DuplicateChecker::default();
-    let mut spacings: BTreeMap<i64, u64> = BTreeMap::new();
-    // The current streak of equal spacings, flushed into `spacings` when the spacing changes.
-    let (mut streak_gap, mut streak_len) = (0i64, 0u64);
-    let mut previous: Option<i64> = None;
-    let (mut rows, mut readings) = (0u64, 0u64);
-    for_each_row(reader, options, source_name, |row| {
-        checker.push(row.time, row.line, source_name)?;
-        if let Some(prev) = previous {
+    let mut pass = SummaryPass {
+        offset: i64::from(options.utc_offset.local_minus_utc()),
+        source_name,
+        ..SummaryPass::default()
+    };
+    for_each_row(reader, options, source_name, |row| pass.accept(row))?;
+    pass.finish()
+}
+
+/// The state of the streaming pass.
+#[derive(Default)]
+struct SummaryPass<'a> {
+    offset: i64,
+    source_name: &'a str,
+    days: DayTotals,
+    checker: DuplicateChecker,
+    spacings: BTreeMap<i64, u64>,
+    /// The current streak of equal spacings, flushed into `spacings` when the spacing
+    /// changes.
+    streak_gap: i64,
+    streak_len: u64,
+    previous: Option<i64>,
+    rows: u64,
+    readings: u64,
+}
+
+impl SummaryPass<'_> {
+    #[inline(always)]
+    fn accept(&mut self, row: Row) -> Result<(), IngestError> {
+        self.checker.push(row.time, row.line, self.source_name)?;
+        if let Some(prev) = self.previous {
             let gap = (row.time - prev).abs();
-            if gap != streak_gap {
-                if streak_len > 0 && streak_gap > 0 {
-                    *spacings.entry(streak_gap).or_insert(0) += streak_len;
-                }
-                (streak_gap, streak_len) = (gap, 0);
+            if gap != self.streak_gap {
+                self.flush_streak();
+                (self.streak_gap, self.streak_len) = (gap, 0);
             }
-            streak_len += 1;
+            self.streak_len += 1;
         }
-        previous = Some(row.time);
-        rows += 1;
+        self.previous = Some(row.time);
+        self.rows += 1;
         if let Some(level) = row.level_m {
-            readings += 1;
-            days.add((row.time + offset).div_euclid(SECONDS_PER_DAY), level);
+            self.readings += 1;
+            self.days
+                .add((row.time + self.offset).div_euclid(SECONDS_PER_DAY), level);
         }
         Ok(())
-    })?;
-    if streak_len > 0 && streak_gap > 0 {
-        *spacings.entry(streak_gap).or_insert(0) += streak_len;
     }
-    let was_sorted = checker.tail.is_empty();
-    checker.finish(source_name)?;
-    Ok(LevelSummary {
-        monthly: days.monthly_means(),
-        days,
-        sampling_interval_s: weighted_median(&spacings),
-        rows,
-        readings,
-        missing: rows - readings,
-        was_sorted,
-    })
+
+    fn flush_streak(&mut self) {
+        if self.streak_len > 0 && self.streak_gap > 0 {
+            *self.spacings.entry(self.streak_gap).or_insert(0) += self.streak_len;
+        }
+    }
+
+    fn finish(mut self) -> Result<LevelSummary, IngestError> {
+        self.flush_streak();
+        let was_sorted = self.checker.tail.is_empty();
+        self.checker.finish(self.source_name)?;
+        Ok(LevelSummary {
+            monthly: self.days.monthly_means(),
+            days: self.days,
+            sampling_interval_s: weighted_median(&self.spacings),
+            rows: self.rows,
+            readings: self.readings,
+            missing: self.rows - self.readings,
+            was_sorted,
+        })
+    }
 }
 
 /// The median of a histogram of spacings (the lower median for an even count).
@@ -333,7 +364,18 @@ struct DuplicateChecker {
 }
 
 impl DuplicateChecker {
+    #[inline]
     fn push(&mut self, time: i64, line: u64, source_name: &str) -> Result<(), IngestError> {
+        // Hot path: the row continues the current run.
+        if let Some(run) = self.runs.last_mut()
+            && self.tail.is_empty()
+            && run.count > 1
+            && time == run.last_time() + run.step
+            && line == run.first_line + run.count
+        {
+            run.count += 1;
+            return Ok(());
+        }
         if !self.tail.is_empty() {
             self.tail.push((time, line));
             return Ok(());
@@ -432,9 +474,10 @@ fn parse_rows(
     let mut line_number = 0u64;
     let mut columns: Option<usize> = None;
     let mut at_eof = false;
-    let parser = RowParser {
+    let mut parser = RowParser {
         options,
         source_name,
+        dates: DateCache::default(),
     };
     while !at_eof {
         if filled == buffer.len() {
@@ -458,7 +501,7 @@ fn parse_rows(
         let mut start = 0;
         loop {
             let rest = &buffer[start..filled];
-            let (line, next) = match rest.iter().position(|&b| b == b'\n') {
+            let (line, next) = match find_newline(rest) {
                 Some(end) => (&rest[..end], start + end + 1),
                 None if at_eof && !rest.is_empty() => (rest, filled),
                 None => break,
@@ -466,7 +509,9 @@ fn parse_rows(
             start = next;
             line_number += 1;
             let line = line.strip_suffix(b"\r").unwrap_or(line);
-            if line.iter().all(u8::is_ascii_whitespace) {
+            let blank = line.first().is_none_or(u8::is_ascii_whitespace)
+                && line.iter().all(u8::is_ascii_whitespace);
+            if blank {
                 continue;
             }
             match columns {
@@ -485,9 +530,60 @@ fn parse_rows(
     Ok(())
 }
 
+/// Finds the first `\n`, eight bytes at a time: a word XOR the pattern has a zero byte where
+/// the newline is, and `(x - 0x01..) & !x & 0x80..` flags the lowest zero byte exactly (higher
+/// flags may be false positives from the borrow, so the lowest set bit is the answer).
+#[inline]
+fn find_newline(bytes: &[u8]) -> Option<usize> {
+    find_byte::<b'\n'>(bytes)
+}
+
+/// The first `BYTE` in `bytes`, eight bytes at a time (see [`find_newline`]).
+#[inline]
+fn find_byte<const BYTE: u8>(bytes: &[u8]) -> Option<usize> {
+    const LOW: u64 = 0x0101_0101_0101_0101;
+    const HIGH: u64 = 0x8080_8080_8080_8080;
+    let pattern: u64 = LOW * u64::from(BYTE);
+    let mut chunks = bytes.chunks_exact(8);
+    let mut offset = 0;
+    for chunk in &mut chunks {
+        let word = u64::from_le_bytes(chunk.try_into().expect("chunks_exact yields 8 bytes"));
+        let x = word ^ pattern;
+        let found = x.wrapping_sub(LOW) & !x & HIGH;
+        if found != 0 {
+            return Some(offset + (found.trailing_zeros() / 8) as usize);
+        }
+        offset += 8;
+    }
+    chunks
+        .remainder()
+        .iter()
+        .position(|&b| b == BYTE)
+        .map(|p| offset + p)
+}
+
+/// The last `YYYY-MM-DD` prefix seen and its day count, so consecutive rows of the same day
+/// skip the calendar arithmetic.
+#[derive(Debug, Default)]
+struct DateCache {
+    /// Bytes 0..8 and 8..10 of the prefix, compared as integers.
+    prefix: (u64, u16),
+    days: i64,
+    valid: bool,
+}
+
+/// The first ten bytes as (u64, u16); the caller ensures at least ten bytes.
+#[inline(always)]
+fn date_key(b: &[u8]) -> (u64, u16) {
+    let head: [u8; 8] = b[..8].try_into().expect("at least ten bytes");
+    let tail: [u8; 2] = b[8..10].try_into().expect("at least ten bytes");
+    (u64::from_le_bytes(head), u16::from_le_bytes(tail))
+}
+
 struct RowParser<'a> {
     options: &'a IngestOptions,
     source_name: &'a str,
+    dates: DateCache,
 }
 
 impl RowParser<'_> {
@@ -525,9 +621,9 @@ impl RowParser<'_> {
         }
     }
 
-    #[inline]
-    fn row(&self, line: &[u8], line_number: u64, columns: usize) -> Result<Row, IngestError> {
-        let Some(comma) = line.iter().position(|&b| b == b',') else {
+    #[inline(always)]
+    fn row(&mut self, line: &[u8], line_number: u64, columns: usize) -> Result<Row, IngestError> {
+        let Some(comma) = find_byte::<b','>(line) else {
             return Err(self.malformed(
                 line_number,
                 "row",
@@ -537,7 +633,7 @@ impl RowParser<'_> {
         };
         let time_field = unquote(&line[..comma]);
         let rest = &line[comma + 1..];
-        let level_field = match rest.iter().position(|&b| b == b',') {
+        let level_field = match find_byte::<b','>(rest) {
             Some(second) if columns == 3 && !rest[second + 1..].contains(&b',') => &rest[..second],
             Some(_) => {
                 let expected = if columns == 3 {
@@ -549,7 +645,7 @@ impl RowParser<'_> {
             }
             None => rest,
         };
-        let time = parse_time(time_field).ok_or_else(|| {
+        let time = parse_time_cached(time_field, &mut self.dates).ok_or_else(|| {
             self.malformed(
                 line_number,
                 "time",
@@ -588,6 +684,7 @@ impl RowParser<'_> {
 }
 
 /// Trims ASCII spaces and one pair of surrounding double quotes.
+#[inline]
 fn unquote(field: &[u8]) -> &[u8] {
     let field = field.trim_ascii();
     field
@@ -603,7 +700,7 @@ enum Level {
 }
 
 /// Reads a level: empty or `NaN` (any case) is missing; otherwise a finite number.
-#[inline]
+#[inline(always)]
 fn parse_level(field: &[u8]) -> Level {
     if field.is_empty() || field.eq_ignore_ascii_case(b"nan") {
         return Level::Missing;
@@ -635,35 +732,42 @@ fn parse_decimal_fast(field: &[u8]) -> Option<f64> {
         b'+' => (false, &field[1..]),
         _ => (false, field),
     };
+    let digit = |i: usize| digits.get(i).filter(|b| b.is_ascii_digit());
+    // Wrapping arithmetic: a mantissa of more than 15 digits is thrown away below anyway.
     let mut mantissa: u64 = 0;
-    let mut count = 0usize;
-    let mut fraction_digits = None;
-    for (i, &b) in digits.iter().enumerate() {
-        match b {
-            b'0'..=b'9' => {
-                mantissa = mantissa * 10 + u64::from(b - b'0');
-                count += 1;
-                if count > 15 {
-                    return None;
-                }
-            }
-            b'.' if fraction_digits.is_none() => fraction_digits = Some(digits.len() - i - 1),
-            _ => return None,
+    let mut i = 0;
+    while let Some(&b) = digit(i) {
+        mantissa = mantissa.wrapping_mul(10).wrapping_add(u64::from(b - b'0'));
+        i += 1;
+    }
+    let integer_digits = i;
+    let mut fraction_digits = 0;
+    if digits.get(i) == Some(&b'.') {
+        i += 1;
+        while let Some(&b) = digit(i) {
+            mantissa = mantissa.wrapping_mul(10).wrapping_add(u64::from(b - b'0'));
+            i += 1;
+            fraction_digits += 1;
         }
     }
-    if count == 0 {
+    let total = integer_digits + fraction_digits;
+    if i != digits.len() || total == 0 || total > 15 {
         return None;
     }
-    let value = mantissa as f64 / POWERS[fraction_digits.unwrap_or(0)];
+    let value = mantissa as f64 / POWERS[fraction_digits];
     Some(if negative { -value } else { value })
 }
 
 /// Reads an ISO 8601 time with `Z` or an offset as Unix seconds (fractions rounded to the
 /// nearest second). The common shapes `YYYY-MM-DDTHH:MM[:SS](Z|±HH:MM|±HHMM|±HH)` are
 /// computed directly; anything else goes to chrono's RFC 3339 parser.
-#[inline]
 pub fn parse_time(field: &[u8]) -> Option<i64> {
-    parse_time_fast(field).or_else(|| {
+    parse_time_cached(field, &mut DateCache::default())
+}
+
+#[inline]
+fn parse_time_cached(field: &[u8], dates: &mut DateCache) -> Option<i64> {
+    parse_time_fast(field, dates).or_else(|| {
         let text = std::str::from_utf8(field).ok()?;
         let t = DateTime::parse_from_rfc3339(text).ok()?;
         let round_up = t.timestamp_subsec_nanos() >= 500_000_000;
@@ -671,7 +775,7 @@ pub fn parse_time(field: &[u8]) -> Option<i64> {
     })
 }
 
-#[inline]
+#[inline(always)]
 fn digits2(b: &[u8], at: usize) -> Option<u32> {
     let (h, l) = (*b.get(at)?, *b.get(at + 1)?);
     (h.is_ascii_digit() && l.is_ascii_digit())
@@ -679,28 +783,35 @@ fn digits2(b: &[u8], at: usize) -> Option<u32> {
 }
 
 #[inline]
-fn parse_time_fast(b: &[u8]) -> Option<i64> {
-    if b.len() < 17 || b[4] != b'-' || b[7] != b'-' || !matches!(b[10], b'T' | b't' | b' ') {
+fn parse_time_fast(b: &[u8], dates: &mut DateCache) -> Option<i64> {
+    if b.len() < 17 || !matches!(b[10], b'T' | b't' | b' ') || b[13] != b':' {
         return None;
     }
-    if b[13] != b':' {
-        return None;
-    }
-    let year = digits2(b, 0)? * 100 + digits2(b, 2)?;
-    let (month, day) = (digits2(b, 5)?, digits2(b, 8)?);
+    let key = date_key(b);
+    let days = if dates.valid && key == dates.prefix {
+        dates.days
+    } else {
+        if b[4] != b'-' || b[7] != b'-' {
+            return None;
+        }
+        let year = digits2(b, 0)? * 100 + digits2(b, 2)?;
+        let (month, day) = (digits2(b, 5)?, digits2(b, 8)?);
+        if !(1..=12).contains(&month) || day < 1 || day > days_in_month(year as i32, month) {
+            return None;
+        }
+        let days = days_from_civil(year as i32, month, day);
+        dates.prefix = key;
+        dates.days = days;
+        dates.valid = true;
+        days
+    };
     let (hour, minute) = (digits2(b, 11)?, digits2(b, 14)?);
     let (second, zone) = if b[16] == b':' {
         (digits2(b, 17)?, &b[19..])
     } else {
         (0, &b[16..])
     };
-    if !(1..=12).contains(&month)
-        || day < 1
-        || day > days_in_month(year as i32, month)
-        || hour > 23
-        || minute > 59
-        || second > 59
-    {
+    if hour > 23 || minute > 59 || second > 59 {
         return None;
     }
     let offset_s = match zone {
@@ -721,7 +832,6 @@ fn parse_time_fast(b: &[u8]) -> Option<i64> {
         }
         _ => return None,
     };
-    let days = days_from_civil(year as i32, month, day);
     Some(days * SECONDS_PER_DAY + i64::from(hour * 3600 + minute * 60 + second) - offset_s)
 }
 
@@ -787,7 +897,11 @@ mod tests {
         ];
         for case in cases {
             let expected = DateTime::parse_from_rfc3339(case).unwrap().timestamp();
-            assert_eq!(parse_time_fast(case.as_bytes()), Some(expected), "{case}");
+            assert_eq!(
+                parse_time_fast(case.as_bytes(), &mut DateCache::default()),
+                Some(expected),
+                "{case}"
+            );
         }
         // Shapes outside RFC 3339 that the fast path reads.
         let t = parse_time(b"2026-01-05T08:00-0500").unwrap();
@@ -800,6 +914,31 @@ mod tests {
         assert_eq!(parse_time(b"2026-01-05T13:00+00"), Some(t));
         // Fractions go through chrono and round to the nearest second.
         assert_eq!(parse_time(b"2026-01-05T12:59:59.6Z"), Some(t));
+    }
+
+    #[test]
+    fn newline_finder_agrees_with_a_byte_scan() {
+        let text = b"abc\ndefghijklmnop\n\nqrstuvwxyz0123456789\xff\x8a\n\x0b";
+        for start in 0..text.len() {
+            let rest = &text[start..];
+            assert_eq!(
+                find_newline(rest),
+                rest.iter().position(|&b| b == b'\n'),
+                "{start}"
+            );
+        }
+    }
+
+    #[test]
+    fn date_cache_does_not_leak_between_days() {
+        let mut cache = DateCache::default();
+        let a = parse_time_fast(b"2026-01-05T13:00:00Z", &mut cache).unwrap();
+        let b = parse_time_fast(b"2026-01-05T14:00:00Z", &mut cache).unwrap();
+        let c = parse_time_fast(b"2026-01-06T13:00:00Z", &mut cache).unwrap();
+        assert_eq!((b - a, c - a), (3600, 86_400));
+        // A bad date after a cached good one is still rejected.
+        assert_eq!(parse_time_fast(b"2026-02-30T13:00:00Z", &mut cache), None);
+        assert_eq!(parse_time_fast(b"2026-01-06X13:00:00Z", &mut cache), None);
     }
 
     #[test]
@@ -837,6 +976,20 @@ mod tests {
         assert_eq!(parse_decimal_fast(b"1e3"), None);
         assert_eq!(parse_decimal_fast(b"1234567890123456"), None);
         assert_eq!(parse_decimal_fast(b"."), None);
+    }
+
+    proptest::proptest! {
+        // Reference: Rust's standard library parser, on random plain decimals.
+        #[test]
+        fn fast_decimal_path_matches_std_on_random_decimals(
+            value in -1.0e6f64..1.0e6,
+            places in 0usize..9,
+        ) {
+            let text = format!("{value:.places$}");
+            let fast = parse_decimal_fast(text.as_bytes());
+            proptest::prop_assert!(fast.is_some(), "{}", text);
+            proptest::prop_assert_eq!(fast, text.parse::<f64>().ok(), "{}", text);
+        }
     }
 
     // 1 ft = 0.3048 m exactly: international yard and pound agreement (1959).

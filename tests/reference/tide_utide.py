@@ -1,9 +1,10 @@
-"""Makes the utide reference fixture for tests/tide_reference.rs.
+"""Makes the utide reference fixtures for tests/tide_reference.rs.
 
-A synthetic record (one year of hourly levels, 2005, with an injected gap and red noise) is
-written to tests/fixtures/tide/synthetic-2005.csv, analysed with utide (a general-purpose
-tidal analysis library from PyPI, Codiga 2011), and utide's constituents are written to
-tests/fixtures/tide/utide-2005.json together with the exact package versions.
+Synthetic records (one year of hourly levels with an injected gap and red noise) for 2005
+(lunar node near 0 deg) and 1997 (node near 180 deg) are written to
+tests/fixtures/tide/synthetic-YEAR.csv, analysed with utide (a general-purpose tidal analysis
+library from PyPI, Codiga 2011), and utide's constituents are written to
+tests/fixtures/tide/utide-YEAR.json together with the exact package versions.
 
 The record is a plain sum of cosines at the constituents' speeds (Schureman 1958, Table 2
 speeds) with arbitrary phases: it does not depend on any phase convention, so both analyses
@@ -52,8 +53,8 @@ FIT = [name for name, *_ in SIGNAL] + ["MU2", "2N2", "J1", "OO1", "RHO1", "T2", 
 LATITUDE = 44.0
 
 
-def main() -> None:
-    rng = np.random.default_rng(20050101)
+def make(year: int) -> None:
+    rng = np.random.default_rng(year * 10000 + 101)
     hours = np.arange(365 * 24, dtype=float)
     level = np.full(hours.shape, 0.80)
     for _, speed, amp, phase in SIGNAL:
@@ -67,10 +68,10 @@ def main() -> None:
     level = np.round(level, 4)
     level[3000:3200] = np.nan  # an eight-day gap
 
-    start = np.datetime64("2005-01-01T00:00:00")
+    start = np.datetime64(f"{year}-01-01T00:00:00")
     times = start + hours.astype("timedelta64[h]")
     FIXTURES.mkdir(parents=True, exist_ok=True)
-    with open(FIXTURES / "synthetic-2005.csv", "w") as out:
+    with open(FIXTURES / f"synthetic-{year}.csv", "w") as out:
         out.write("time,level\n")
         for t, x in zip(times, level):
             out.write(f"{np.datetime_as_string(t, unit='s')}Z,{'' if np.isnan(x) else f'{x:.4f}'}\n")
@@ -100,7 +101,7 @@ def main() -> None:
     ]
     fixture = {
         "source": "utide.solve(method='ols', conf_int='linear', trend=False, nodal=True, phase='Greenwich')",
-        "record": "synthetic-2005.csv",
+        "record": f"synthetic-{year}.csv",
         "latitude": LATITUDE,
         "mean": float(coef.mean),
         "versions": {
@@ -111,10 +112,11 @@ def main() -> None:
         },
         "constituents": constituents,
     }
-    with open(FIXTURES / "utide-2005.json", "w") as out:
+    with open(FIXTURES / f"utide-{year}.json", "w") as out:
         json.dump(fixture, out, indent=1)
         out.write("\n")
 
 
 if __name__ == "__main__":
-    main()
+    make(2005)
+    make(1997)

@@ -180,6 +180,18 @@ impl EnsoForecast {
         })
     }
 
+    /// Checks that the forecast is for `target`.
+    pub fn check_season(&self, target: &Season) -> Result<(), ScenarioError> {
+        if self.season == *target {
+            Ok(())
+        } else {
+            Err(ScenarioError::WrongSeason {
+                forecast: self.season.label(),
+                target: target.label(),
+            })
+        }
+    }
+
     /// The members as (value, weight) pairs, each model's members sharing `1 / n_models`;
     /// empty for a probability forecast.
     pub fn pooled_members(&self) -> Vec<(f64, f64)> {
@@ -358,6 +370,14 @@ pub enum ScenarioError {
     NoPastSeasons {
         /// The drivers, comma separated.
         drivers: String,
+    },
+    /// The forecast is for another season than the target.
+    #[error("the ENSO forecast is for {forecast}, not the target season {target}")]
+    WrongSeason {
+        /// The forecast's season.
+        forecast: String,
+        /// The target season.
+        target: String,
     },
     /// A known ENSO value that is not finite.
     #[error("known ENSO value {0} is not a finite number")]

@@ -220,6 +220,25 @@ mod tests {
     use super::*;
 
     #[test]
+    fn parse_names_line_and_field_and_skips_missing() {
+        let text = "date,rmm1,rmm2\n2020-01-01,1.0,0.5\n2020-01-02,NaN,0.5\n2020-01-03,,\n";
+        let series = RmmSeries::parse(text.as_bytes(), "rmm.csv").unwrap();
+        assert_eq!(series.len(), 1);
+        let bad = "date,rmm1,rmm2\n2020-01-01,1.0,0.5\n2020-02-30,1.0,0.5\n";
+        let msg = RmmSeries::parse(bad.as_bytes(), "rmm.csv")
+            .unwrap_err()
+            .to_string();
+        assert!(msg.contains("rmm.csv line 3, field date"), "{msg}");
+        let bad = "date,rmm1,rmm2\n2020-01-01,1.0,inf\n";
+        let msg = RmmSeries::parse(bad.as_bytes(), "rmm.csv")
+            .unwrap_err()
+            .to_string();
+        assert!(msg.contains("line 2, field rmm2"), "{msg}");
+        let short = "date,rmm1,rmm2\n2020-01-01,1.0\n";
+        assert!(RmmSeries::parse(short.as_bytes(), "rmm.csv").is_err());
+    }
+
+    #[test]
     fn phase_set_validates() {
         assert!(PhaseSet::new(&[2, 3]).unwrap().contains(3));
         assert!(!PhaseSet::new(&[2, 3]).unwrap().contains(4));

@@ -4,7 +4,7 @@
 //! The trend is fitted by ordinary least squares (linfa-linear's `LinearRegression`) on time
 //! centred at the record's mean time, linear or quadratic. Its covariance is
 //! `s^2 (X'X)^-1` with `s^2` the residual variance, then inflated for the autocorrelation of
-//! monthly residuals: with `r1` their lag-1 autocorrelation (pairs of consecutive months only),
+//! monthly residuals: with `r1` their lag-1 sample autocorrelation (pairs of consecutive months only),
 //! the effective sample size is `n_eff = n (1 - r1) / (1 + r1)` (AR(1); no change when
 //! `r1 <= 0`) and the covariance is multiplied by `(n - p) / (n_eff - p)` for `p` parameters,
 //! i.e. the residual variance is taken over `n_eff - p` degrees of freedom (Santer et al. 2000,
@@ -20,7 +20,7 @@ use linfa::traits::Fit;
 use linfa_linear::LinearRegression;
 use nalgebra::{DMatrix, DVector};
 use ndarray::{Array1, Array2};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use statrs::distribution::{ContinuousCDF, Normal, StudentsT};
 
 use crate::season::{Season, decimal_year};
@@ -107,7 +107,7 @@ pub struct MonthlyMeanLevel {
 }
 
 /// The shape of a fitted trend.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum TrendShape {
     /// level = a + b t.
@@ -132,7 +132,7 @@ impl TrendShape {
 /// in the residuals it looks like strong autocorrelation and widens the trend's interval.
 /// Fitting it (annual and semiannual harmonics, nuisance terms not part of the trend value)
 /// keeps the AR(1) correction for the noise that is really there.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum SeasonalCycle {
     /// No cycle terms (for records already deseasonalised).
@@ -354,8 +354,10 @@ pub fn fit_trend(
             lag_pairs += 1;
         }
     }
+    // The usual sample autocorrelation sum(e_t e_t+1) / sum(e_t^2) (residuals have mean 0);
+    // when gaps remove month pairs, the lag sum is scaled up to n - 1 pairs.
     let r1 = if lag_pairs > 0 && rss > 0.0 {
-        (lag_sum / lag_pairs as f64) / (rss / n as f64)
+        lag_sum * (n - 1) as f64 / lag_pairs as f64 / rss
     } else {
         0.0
     };
@@ -518,6 +520,67 @@ impl SeaLevelSource {
     }
 }
 
+/// A gauge's choice of sea-level source, as written in its TOML (`[sea_level]`), before any
+/// fit. `source = "trend"` (the default; `shape` and `cycle` optional), `"rate"`
+/// (`rate_m_per_yr`, `reference_year`, `reference_level_m`) or `"projection"`
+/// (`points = [[year, level_m], ...]`).
+#[derive(Debug, Clone, PartialEq, Deserialize)]
+#[serde(tag = "source", rename_all = "snake_case", deny_unknown_fields)]
+pub enum SeaLevelSetting {
+    /// Fit a trend to the gauge's monthly means.
+    Trend {
+        /// Linear (default) or quadratic.
+        #[serde(default)]
+        shape: TrendShape,
+        /// Seasonal-cycle terms (default: annual and semiannual).
+        #[serde(default)]
+        cycle: SeasonalCycle,
+    },
+    /// A set rate.
+    Rate {
+        /// m/yr.
+        rate_m_per_yr: f64,
+        /// Decimal year of the reference level.
+        reference_year: f64,
+        /// Level at the reference year, m on the gauge's datum.
+        reference_level_m: f64,
+    },
+    /// A projection table.
+    Projection {
+        /// (decimal year, level m) points, years increasing.
+        points: Vec<[f64; 2]>,
+    },
+}
+
+impl Default for SeaLevelSetting {
+    fn default() -> Self {
+        SeaLevelSetting::Trend {
+            shape: TrendShape::default(),
+            cycle: SeasonalCycle::default(),
+        }
+    }
+}
+
+impl SeaLevelSetting {
+    /// The checked source: fits the trend to `months` when the setting asks for one.
+    pub fn resolve(&self, months: &[MonthlyMeanLevel]) -> Result<SeaLevelSource, TrendError> {
+        match self {
+            SeaLevelSetting::Trend { shape, cycle } => {
+                fit_trend(months, *shape, *cycle).map(SeaLevelSource::Fitted)
+            }
+            SeaLevelSetting::Rate {
+                rate_m_per_yr,
+                reference_year,
+                reference_level_m,
+            } => SeaLevelSource::rate(*rate_m_per_yr, *reference_year, *reference_level_m),
+            SeaLevelSetting::Projection { points } => {
+                Projection::new(points.iter().map(|&[y, l]| (y, l)).collect())
+                    .map(SeaLevelSource::Projection)
+            }
+        }
+    }
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
@@ -568,6 +631,36 @@ mod tests {
             fit_trend(&dup, TrendShape::Linear, SeasonalCycle::Omitted),
             Err(TrendError::DuplicateMonth { .. })
         ));
+    }
+
+    #[test]
+    fn settings_read_from_toml() {
+        #[derive(Deserialize)]
+        struct Gauge {
+            sea_level: SeaLevelSetting,
+        }
+        let trend: Gauge =
+            toml::from_str("[sea_level]\nsource = \"trend\"\nshape = \"quadratic\"\n").unwrap();
+        assert_eq!(
+            trend.sea_level,
+            SeaLevelSetting::Trend {
+                shape: TrendShape::Quadratic,
+                cycle: SeasonalCycle::AnnualSemiannual
+            }
+        );
+        let rate: Gauge = toml::from_str(
+            "[sea_level]\nsource = \"rate\"\nrate_m_per_yr = 0.004\nreference_year = 2000.0\nreference_level_m = 0.1\n",
+        )
+        .unwrap();
+        let source = rate.sea_level.resolve(&[]).unwrap();
+        assert!((source.level_at(2010.0).unwrap().value - 0.14).abs() < 1e-12);
+        let table: Gauge = toml::from_str(
+            "[sea_level]\nsource = \"projection\"\npoints = [[2020.0, 0.1], [2050.0, 0.3]]\n",
+        )
+        .unwrap();
+        assert!(table.sea_level.resolve(&[]).is_ok());
+        assert!(toml::from_str::<Gauge>("[sea_level]\nsource = \"rate\"\n").is_err());
+        assert!(SeaLevelSetting::default().resolve(&[]).is_err()); // too few months
     }
 
     #[test]

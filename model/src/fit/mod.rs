@@ -70,6 +70,20 @@ pub fn fit_gauge(
     season_name: &str,
     options: &FitOptions,
 ) -> Result<GaugeModel, FitError> {
+    let specs = &prepared.config.seasons.specs;
+    if !specs
+        .iter()
+        .any(|s| s.name().eq_ignore_ascii_case(season_name))
+    {
+        return Err(FitError::UnknownSeasonName {
+            season_name: season_name.to_owned(),
+            known: specs
+                .iter()
+                .map(|s| s.name())
+                .collect::<Vec<_>>()
+                .join(", "),
+        });
+    }
     let design = gauge_design(prepared, season_name, options);
     let family = options
         .family
@@ -94,6 +108,14 @@ pub enum FitError {
         needed: usize,
         /// Seasons of that name left out.
         left_out: usize,
+    },
+    /// A season name the gauge does not define.
+    #[error("no season named {season_name:?} is defined for this gauge (known: {known})")]
+    UnknownSeasonName {
+        /// The name asked for.
+        season_name: String,
+        /// The defined names, comma separated.
+        known: String,
     },
     /// The count model failed.
     #[error("{season_name}: {source}")]

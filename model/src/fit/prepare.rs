@@ -120,6 +120,9 @@ pub struct PreparedGauge {
     pub settings: PredictorSettings,
     /// The last observed day of the level record.
     pub last_observed_day: Option<NaiveDate>,
+    /// The tidal driver of the seasons in the two years after the record (precomputed: the
+    /// tide prediction is the costly part of an outlook's drivers).
+    pub upcoming_tide: Vec<(Season, f64)>,
     /// Notes on preparation (e.g. a driver that could not be built).
     pub notes: Vec<String>,
 }
@@ -368,6 +371,16 @@ pub fn prepare_from(
         .rev()
         .find(|d| d.observed)
         .map(|d| d.date);
+    let upcoming_tide = match (&drivers.tide, last_observed_day) {
+        (Some(tide), Some(last)) => upcoming_seasons(&config, last, 2)
+            .into_iter()
+            .map(|s| {
+                let v = tide.value(&s, drivers.sea_level.as_ref());
+                (s, v)
+            })
+            .collect(),
+        _ => Vec::new(),
+    };
     Ok(PreparedGauge {
         config,
         seasons,
@@ -375,8 +388,27 @@ pub fn prepare_from(
         drivers,
         settings,
         last_observed_day,
+        upcoming_tide,
         notes,
     })
+}
+
+/// The seasons of the gauge's definitions starting after `last` and within `years` years of
+/// it, in order of their first day.
+fn upcoming_seasons(config: &GaugeConfig, last: NaiveDate, years: i32) -> Vec<Season> {
+    let year = chrono::Datelike::year(&last);
+    let mut out: Vec<Season> = config
+        .seasons
+        .specs
+        .iter()
+        .flat_map(|spec| (0..=years).filter_map(move |k| Season::new(year + k, spec.clone()).ok()))
+        .filter(|s| {
+            s.first_day() > last
+                && s.first_day() <= last + chrono::Duration::days(366 * i64::from(years))
+        })
+        .collect();
+    out.sort_by_key(Season::first_day);
+    out
 }
 
 impl PreparedGauge {
@@ -388,6 +420,25 @@ impl PreparedGauge {
             .iter()
             .map(|&p| predictor_of(p))
             .collect()
+    }
+
+    /// The tidal driver of `season`: from the record's seasons or the precomputed upcoming
+    /// ones, else predicted now; `None` when the gauge does not use the tide.
+    pub fn tidal_driver(&self, season: &Season) -> Option<f64> {
+        let tide = self.drivers.tide.as_ref()?;
+        let known = self
+            .season(&season.label())
+            .and_then(|s| match s.driver(Predictor::Tide) {
+                Some(DriverValue::Known(v)) => Some(*v),
+                _ => None,
+            })
+            .or_else(|| {
+                self.upcoming_tide
+                    .iter()
+                    .find(|(s, _)| s == season)
+                    .map(|(_, v)| *v)
+            });
+        Some(known.unwrap_or_else(|| tide.value(season, self.drivers.sea_level.as_ref())))
     }
 
     /// The default target season: the first season (of the gauge's definitions) starting

@@ -63,14 +63,8 @@ pub struct FamilyChoice {
 /// Fits the requested family to validated data.
 pub fn fit(data: &GlmData, request: FamilyRequest) -> Result<FittedGlm, GlmError> {
     let poisson_irls = fit_poisson_irls(data)?;
-    let poisson = || {
-        FittedGlm::from_irls(
-            data,
-            poisson_irls.clone(),
-            None,
-            poisson_irls.iterations,
-        )
-    };
+    let poisson =
+        || FittedGlm::from_irls(data, poisson_irls.clone(), None, poisson_irls.iterations);
     if request == FamilyRequest::Poisson {
         return poisson();
     }
@@ -105,7 +99,13 @@ const THETA_INFINITE_NOTE: &str = "the negative-binomial theta ran to infinity (
 
 fn fit_poisson_irls(data: &GlmData) -> Result<IrlsFit, GlmError> {
     let start: Vec<f64> = data.response().iter().map(|y| y + 0.1).collect();
-    irls(data.design(), data.response(), data.offset(), Variance::Poisson, &start)
+    irls(
+        data.design(),
+        data.response(),
+        data.offset(),
+        Variance::Poisson,
+        &start,
+    )
 }
 
 /// Picks between the two fits by the boundary-corrected likelihood-ratio test.
@@ -126,7 +126,11 @@ fn choose(poisson: FittedGlm, negbin: Option<FittedGlm>) -> FittedGlm {
     };
     let statistic = (2.0 * (negbin.log_likelihood - poisson.log_likelihood)).max(0.0);
     let p_value = boundary_lr_p_value(statistic);
-    let chosen = if p_value < AUTO_TEST_LEVEL { Family::Negbin } else { Family::Poisson };
+    let chosen = if p_value < AUTO_TEST_LEVEL {
+        Family::Negbin
+    } else {
+        Family::Poisson
+    };
     let reason = match chosen {
         Family::Negbin => format!(
             "negative binomial chosen: the likelihood-ratio test against Poisson gives \
@@ -149,7 +153,11 @@ fn choose(poisson: FittedGlm, negbin: Option<FittedGlm>) -> FittedGlm {
         aic_negbin: Some(negbin.aic),
         reason,
     };
-    let mut fit = if chosen == Family::Negbin { negbin } else { poisson };
+    let mut fit = if chosen == Family::Negbin {
+        negbin
+    } else {
+        poisson
+    };
     fit.family_choice = Some(choice);
     fit
 }

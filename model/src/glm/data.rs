@@ -36,7 +36,10 @@ impl GlmSpec {
                 });
             }
             if !(e > 0.0) {
-                return Err(GlmError::BadExposure { row: i + 1, value: e });
+                return Err(GlmError::BadExposure {
+                    row: i + 1,
+                    value: e,
+                });
             }
             offset.push(e.ln());
         }
@@ -50,7 +53,10 @@ impl GlmSpec {
         let n = self.response.len();
         let q = self.predictors.len() + 1;
         if n == 0 || n < q {
-            return Err(GlmError::TooFewRows { rows: n, coefficients: q });
+            return Err(GlmError::TooFewRows {
+                rows: n,
+                coefficients: q,
+            });
         }
         for (i, &y) in self.response.iter().enumerate() {
             if !y.is_finite() {
@@ -61,7 +67,10 @@ impl GlmSpec {
                 });
             }
             if !(y >= 0.0) || y.fract() != 0.0 {
-                return Err(GlmError::BadCount { row: i + 1, value: y });
+                return Err(GlmError::BadCount {
+                    row: i + 1,
+                    value: y,
+                });
             }
         }
         if self.response.iter().all(|&y| y == 0.0) {
@@ -138,12 +147,16 @@ fn check_rank(design: &DMatrix<f64>, names: &[String]) -> Result<(), GlmError> {
     let gram = design.tr_mul(design) / n;
     let eigen = SymmetricEigen::new(gram);
     let largest = eigen.eigenvalues.iter().cloned().fold(0.0_f64, f64::max);
-    let (k, smallest) = eigen
-        .eigenvalues
-        .iter()
-        .cloned()
-        .enumerate()
-        .fold((0, f64::INFINITY), |best, (i, v)| if v < best.1 { (i, v) } else { best });
+    let (k, smallest) =
+        eigen
+            .eigenvalues
+            .iter()
+            .cloned()
+            .enumerate()
+            .fold(
+                (0, f64::INFINITY),
+                |best, (i, v)| if v < best.1 { (i, v) } else { best },
+            );
     if smallest > RANK_TOLERANCE * largest {
         return Ok(());
     }
@@ -261,9 +274,14 @@ mod tests {
         let a = vec![1.0, 2.0, 3.0, 4.0, 5.0, 7.0];
         let b = vec![0.5, 0.1, 0.3, 0.9, 0.2, 0.4];
         let c: Vec<f64> = a.iter().zip(&b).map(|(x, y)| 2.0 * x - y).collect();
-        let err = spec(vec![("a", a), ("b", b), ("c", c), ("d", vec![1., 0., 1., 0., 0., 1.])])
-            .check()
-            .expect_err("c = 2a - b");
+        let err = spec(vec![
+            ("a", a),
+            ("b", b),
+            ("c", c),
+            ("d", vec![1., 0., 1., 0., 0., 1.]),
+        ])
+        .check()
+        .expect_err("c = 2a - b");
         match err {
             GlmError::RankDeficient { columns } => assert_eq!(columns, ["a", "b", "c"]),
             other => panic!("unexpected {other:?}"),
@@ -279,7 +297,10 @@ mod tests {
         ));
         s.predictors[0].1[2] = 3.0;
         s.response[4] = 2.5;
-        assert!(matches!(s.clone().check(), Err(GlmError::BadCount { row: 5, .. })));
+        assert!(matches!(
+            s.clone().check(),
+            Err(GlmError::BadCount { row: 5, .. })
+        ));
         s.response = vec![0.0; 6];
         assert_eq!(s.clone().check(), Err(GlmError::AllZeroResponse));
         let s = spec(vec![("k", vec![2.0; 6])]);

@@ -6,7 +6,7 @@ use serde::Serialize;
 use statrs::function::erf::erfc;
 
 use super::data::GlmData;
-use super::irls::{IrlsFit, Variance, irls, separated_rows};
+use super::irls::{IrlsFit, Variance, irls, ln_factorial_sum, separated_rows};
 use super::{Family, FamilyChoice, GlmError};
 
 /// The 97.5% quantile of the standard normal, for 95% Wald intervals.
@@ -97,23 +97,34 @@ impl FittedGlm {
         let separated = separated_rows(y, &fit.mu);
         if separated > 0 {
             let mut order: Vec<usize> = (1..data.names().len()).collect();
-            order.sort_by(|&a, &b| fit.coefficients[b].abs().total_cmp(&fit.coefficients[a].abs()));
+            order.sort_by(|&a, &b| {
+                fit.coefficients[b]
+                    .abs()
+                    .total_cmp(&fit.coefficients[a].abs())
+            });
             let columns = if order.is_empty() {
                 vec!["intercept".to_string()]
             } else {
                 order
                     .iter()
-                    .take_while(|&&j| fit.coefficients[j].abs() > 0.5 * fit.coefficients[order[0]].abs())
+                    .take_while(|&&j| {
+                        fit.coefficients[j].abs() > 0.5 * fit.coefficients[order[0]].abs()
+                    })
                     .map(|&j| data.names()[j].clone())
                     .collect()
             };
-            return Err(GlmError::PerfectSeparation { rows: separated, columns });
+            return Err(GlmError::PerfectSeparation {
+                rows: separated,
+                columns,
+            });
         }
         let a = data.to_original();
         let beta = &a * &fit.coefficients;
         let cov = &a * &fit.covariance * a.transpose();
         let factor = nalgebra::Cholesky::new(fit.covariance.clone())
-            .ok_or(GlmError::Numerical("the coefficient covariance is not positive definite"))?
+            .ok_or(GlmError::Numerical(
+                "the coefficient covariance is not positive definite",
+            ))?
             .l();
         let covariance_factor = &a * factor;
         let coefficients = data
@@ -144,11 +155,15 @@ impl FittedGlm {
             .zip(&fit.mu)
             .map(|(&y, &m)| (y - m).powi(2) / variance.variance(m))
             .sum::<f64>();
-        let log_likelihood = variance.log_likelihood(y, &fit.mu);
+        let log_likelihood = variance.log_likelihood_kernel(y, &fit.mu) - ln_factorial_sum(y);
         let k = (q + usize::from(theta.is_some())) as f64;
         let null = null_deviance(data, variance)?;
         Ok(FittedGlm {
-            family: if theta.is_some() { Family::Negbin } else { Family::Poisson },
+            family: if theta.is_some() {
+                Family::Negbin
+            } else {
+                Family::Poisson
+            },
             coefficients,
             theta,
             deviance: fit.deviance,
@@ -156,7 +171,11 @@ impl FittedGlm {
             df_residual,
             rows: n,
             pearson_chi2,
-            dispersion: if df_residual > 0 { pearson_chi2 / df_residual as f64 } else { 1.0 },
+            dispersion: if df_residual > 0 {
+                pearson_chi2 / df_residual as f64
+            } else {
+                1.0
+            },
             log_likelihood,
             aic: -2.0 * log_likelihood + 2.0 * k,
             bic: -2.0 * log_likelihood + k * (n as f64).ln(),
@@ -164,7 +183,9 @@ impl FittedGlm {
             fitted_means: fit.mu,
             notes: Vec::new(),
             family_choice: None,
-            covariance: (0..q).map(|i| (0..q).map(|j| cov[(i, j)]).collect()).collect(),
+            covariance: (0..q)
+                .map(|i| (0..q).map(|j| cov[(i, j)]).collect())
+                .collect(),
             covariance_factor,
         })
     }

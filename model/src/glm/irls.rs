@@ -54,28 +54,62 @@ impl Variance {
         }
     }
 
-    /// The log-probability of count `y` at mean `mu`.
-    pub(super) fn log_density(self, y: f64, mu: f64) -> f64 {
+    /// The log-probability of count `y` at mean `mu`, without the `-ln y!` term (a constant
+    /// of the data, see [`ln_factorial_sum`]).
+    pub(super) fn log_density_kernel(self, y: f64, mu: f64) -> f64 {
         let ylogmu = if y > 0.0 { y * mu.ln() } else { 0.0 };
         match self {
-            Variance::Poisson => ylogmu - mu - ln_gamma(y + 1.0),
+            Variance::Poisson => ylogmu - mu,
             Variance::Negbin(theta) => {
-                ln_gamma(theta + y) - ln_gamma(theta) - ln_gamma(y + 1.0) + theta * theta.ln()
-                    + ylogmu
-                    - (theta + y) * (theta + mu).ln()
+                // ln Gamma(theta+y) - ln Gamma(theta) - y ln(theta+mu) is, for a whole count,
+                // ln prod_{j<y} (theta+j)/(theta+mu): exact and free of the cancellation that
+                // ln Gamma differences suffer at large theta. Logs are taken every 16 factors
+                // so the product can neither overflow nor underflow.
+                let ratio_terms = if y <= 400.0 {
+                    let denominator = theta + mu;
+                    let mut acc = 0.0;
+                    let mut product = 1.0;
+                    let mut j = 0.0;
+                    let mut pending = 0;
+                    while j < y {
+                        product *= (theta + j) / denominator;
+                        j += 1.0;
+                        pending += 1;
+                        if pending == 16 {
+                            acc += product.ln();
+                            product = 1.0;
+                            pending = 0;
+                        }
+                    }
+                    acc + product.ln()
+                } else {
+                    ln_gamma(theta + y) - ln_gamma(theta) - y * (theta + mu).ln()
+                };
+                ratio_terms + ylogmu - theta * (mu / theta).ln_1p()
             }
         }
     }
 
     /// The deviance of fitted means `mu`.
     pub(super) fn deviance(self, y: &[f64], mu: &[f64]) -> f64 {
-        y.iter().zip(mu).map(|(&y, &m)| self.unit_deviance(y, m)).sum()
+        y.iter()
+            .zip(mu)
+            .map(|(&y, &m)| self.unit_deviance(y, m))
+            .sum()
     }
 
-    /// The log-likelihood of fitted means `mu`.
-    pub(super) fn log_likelihood(self, y: &[f64], mu: &[f64]) -> f64 {
-        y.iter().zip(mu).map(|(&y, &m)| self.log_density(y, m)).sum()
+    /// The log-likelihood of fitted means `mu` without the constant `-sum ln y!`.
+    pub(super) fn log_likelihood_kernel(self, y: &[f64], mu: &[f64]) -> f64 {
+        y.iter()
+            .zip(mu)
+            .map(|(&y, &m)| self.log_density_kernel(y, m))
+            .sum()
     }
+}
+
+/// `sum ln y!`, the data's constant in every count log-likelihood.
+pub(super) fn ln_factorial_sum(y: &[f64]) -> f64 {
+    y.iter().map(|&y| ln_gamma(y + 1.0)).sum()
 }
 
 /// A converged IRLS fit, on the scale of the design it was given.
@@ -93,6 +127,10 @@ pub(super) struct IrlsFit {
     pub iterations: usize,
 }
 
+/// Relative deviance change for the intermediate IRLS passes inside the theta alternation
+/// (R's default); the final pass uses the tight tolerance.
+pub(super) const INTERMEDIATE_TOLERANCE: f64 = 1e-8;
+
 /// Fits `y ~ design` with a log link and the offset by IRLS, starting from the means `start`.
 pub(super) fn irls(
     design: &DMatrix<f64>,
@@ -100,6 +138,18 @@ pub(super) fn irls(
     offset: &[f64],
     variance: Variance,
     start: &[f64],
+) -> Result<IrlsFit, GlmError> {
+    irls_to(design, y, offset, variance, start, DEVIANCE_TOLERANCE)
+}
+
+/// [`irls`] stopping at relative deviance change `tolerance`.
+pub(super) fn irls_to(
+    design: &DMatrix<f64>,
+    y: &[f64],
+    offset: &[f64],
+    variance: Variance,
+    start: &[f64],
+    tolerance: f64,
 ) -> Result<IrlsFit, GlmError> {
     let (n, q) = design.shape();
     let mut mu = start.to_vec();
@@ -115,8 +165,9 @@ pub(super) fn irls(
             working[i] = eta[i] - offset[i] + (y[i] - mu[i]) / mu[i];
         }
         weighted_normal_equations(design, &weights, &working, &mut xtwx, &mut xtwz);
-        let chol = nalgebra::Cholesky::new(xtwx.clone())
-            .ok_or(GlmError::Numerical("the weighted information matrix X'WX is singular"))?;
+        let chol = nalgebra::Cholesky::new(xtwx.clone()).ok_or(GlmError::Numerical(
+            "the weighted information matrix X'WX is singular",
+        ))?;
         let coefficients = chol.solve(&xtwz);
         let linear = design * &coefficients;
         for i in 0..n {
@@ -130,13 +181,15 @@ pub(super) fn irls(
         if !dev.is_finite() {
             return Err(GlmError::Numerical("the deviance became non-finite"));
         }
-        if (dev - dev_old).abs() / (dev.abs() + 0.1) < DEVIANCE_TOLERANCE {
+        if (dev - dev_old).abs() / (dev.abs() + 0.1) < tolerance {
             for i in 0..n {
                 weights[i] = variance.weight(mu[i]);
             }
             weighted_normal_equations(design, &weights, &working, &mut xtwx, &mut xtwz);
             let covariance = nalgebra::Cholesky::new(xtwx.clone())
-                .ok_or(GlmError::Numerical("the information matrix X'WX is singular"))?
+                .ok_or(GlmError::Numerical(
+                    "the information matrix X'WX is singular",
+                ))?
                 .inverse();
             return Ok(IrlsFit {
                 coefficients,

@@ -5,8 +5,8 @@
 
 use nalgebra::DVector;
 use rand::Rng;
-use rand_chacha::ChaCha8Rng;
 use rand::SeedableRng;
+use rand_chacha::ChaCha8Rng;
 use rand_distr::StandardNormal;
 use serde::Serialize;
 
@@ -241,9 +241,25 @@ impl PmfMixture {
         Ok(())
     }
 
+    /// Adds an already built component (e.g. another mixture); counts beyond this mixture's
+    /// `n_max` are folded into its truncated mass and the component is renormalised.
+    pub fn add_distribution(&mut self, component: &CountDistribution) {
+        let kept: f64 = component.pmf.iter().take(self.sum.len()).sum();
+        if kept > 0.0 {
+            for (s, p) in self.sum.iter_mut().zip(&component.pmf) {
+                *s += p / kept;
+            }
+            self.components += 1;
+            self.truncated_mass += (1.0 - kept).max(0.0);
+        }
+    }
+
     fn add_kernel(&mut self, kernel: Kernel) {
         let mass = fill_pmf(kernel, &mut self.scratch);
-        self.sum.iter_mut().zip(&self.scratch).for_each(|(s, p)| *s += p);
+        self.sum
+            .iter_mut()
+            .zip(&self.scratch)
+            .for_each(|(s, p)| *s += p);
         self.components += 1;
         self.truncated_mass += mass;
     }
@@ -324,8 +340,12 @@ impl FittedGlm {
         let centre = DVector::from_iterator(q, self.coefficients.iter().map(|c| c.estimate));
         (0..n)
             .map(|_| {
-                let e = DVector::from_iterator(q, (0..q).map(|_| rng.sample::<f64, _>(StandardNormal)));
-                (&centre + &self.covariance_factor * e).iter().copied().collect()
+                let e =
+                    DVector::from_iterator(q, (0..q).map(|_| rng.sample::<f64, _>(StandardNormal)));
+                (&centre + &self.covariance_factor * e)
+                    .iter()
+                    .copied()
+                    .collect()
             })
             .collect()
     }
@@ -386,7 +406,12 @@ impl FittedGlm {
     }
 
     /// The family's pmf at the point estimate for a new row (no parameter uncertainty).
-    pub fn point_pmf(&self, x: &[f64], offset: f64, n_max: usize) -> Result<TruncatedPmf, GlmError> {
+    pub fn point_pmf(
+        &self,
+        x: &[f64],
+        offset: f64,
+        n_max: usize,
+    ) -> Result<TruncatedPmf, GlmError> {
         let mu = self.mean(x, offset)?;
         match (self.family, self.theta) {
             (Family::Negbin, Some(t)) => negbin_pmf(mu, t.estimate, n_max),
@@ -420,8 +445,14 @@ mod tests {
         let p = poisson_pmf(mu, 400).expect("valid");
         for k in 0..60u64 {
             let rel = |a: f64, b: f64| (a - b).abs() / b;
-            assert!(rel(t.distribution.pmf[k as usize], nb.pmf(k)) < 1e-10, "nb k={k}");
-            assert!(rel(p.distribution.pmf[k as usize], po.pmf(k)) < 1e-10, "poisson k={k}");
+            assert!(
+                rel(t.distribution.pmf[k as usize], nb.pmf(k)) < 1e-10,
+                "nb k={k}"
+            );
+            assert!(
+                rel(p.distribution.pmf[k as usize], po.pmf(k)) < 1e-10,
+                "poisson k={k}"
+            );
             assert!(
                 (negbin_log_pmf(k as f64, mu, theta) - nb.ln_pmf(k)).abs() < 1e-10,
                 "log k={k}"
@@ -473,6 +504,13 @@ mod tests {
         for k in 0..=40 {
             let want = 0.5 * (a.distribution.pmf[k] + b.distribution.pmf[k]);
             assert!((mixed.distribution.pmf[k] - want).abs() < 1e-15);
+        }
+        let mut again = PmfMixture::new(40);
+        again.add_distribution(&a.distribution);
+        again.add_distribution(&b.distribution);
+        let again = again.finish().expect("two").distribution;
+        for (x, y) in again.pmf.iter().zip(&mixed.distribution.pmf) {
+            assert!((x - y).abs() < 1e-15);
         }
         assert!(PmfMixture::new(5).finish().is_none());
         assert!(PmfMixture::new(5).add_negbin(1.0, f64::NAN).is_err());

@@ -71,7 +71,9 @@ pub fn read_table(
     source_name: &str,
     columns: &ColumnSpec,
 ) -> Result<GlmSpec, TableError> {
-    let mut csv = csv::ReaderBuilder::new().trim(csv::Trim::All).from_reader(reader);
+    let mut csv = csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .from_reader(reader);
     let csv_error = |e: csv::Error| TableError::Csv {
         source_name: source_name.to_string(),
         line: e.position().map_or(0, |p| p.line()),
@@ -79,11 +81,14 @@ pub fn read_table(
     };
     let header = csv.headers().map_err(csv_error)?.clone();
     let find = |name: &str| {
-        header.iter().position(|h| h == name).ok_or_else(|| TableError::MissingColumn {
-            source_name: source_name.to_string(),
-            column: name.to_string(),
-            available: header.iter().collect::<Vec<_>>().join(", "),
-        })
+        header
+            .iter()
+            .position(|h| h == name)
+            .ok_or_else(|| TableError::MissingColumn {
+                source_name: source_name.to_string(),
+                column: name.to_string(),
+                available: header.iter().collect::<Vec<_>>().join(", "),
+            })
     };
     let response_at = find(&columns.response)?;
     let predictor_at = columns
@@ -99,7 +104,11 @@ pub fn read_table(
 
     let mut spec = GlmSpec {
         response: Vec::new(),
-        predictors: columns.predictors.iter().map(|p| (p.clone(), Vec::new())).collect(),
+        predictors: columns
+            .predictors
+            .iter()
+            .map(|p| (p.clone(), Vec::new()))
+            .collect(),
         offset: offset_at.map(|_| Vec::new()),
     };
     for record in csv.records() {
@@ -123,18 +132,26 @@ pub fn read_table(
                 None => Ok(value),
             }
         };
-        spec.response.push(cell(response_at, &columns.response, |v| {
-            (!(v >= 0.0) || v.fract() != 0.0).then_some("is not a non-negative whole count")
-        })?);
+        spec.response
+            .push(cell(response_at, &columns.response, |v| {
+                (!(v >= 0.0) || v.fract() != 0.0).then_some("is not a non-negative whole count")
+            })?);
         for ((name, values), &at) in spec.predictors.iter_mut().zip(&predictor_at) {
             values.push(cell(at, name, |_| None)?);
         }
-        if let (Some(at), Some(values), Some(column)) = (offset_at, spec.offset.as_mut(), &columns.offset) {
+        if let (Some(at), Some(values), Some(column)) =
+            (offset_at, spec.offset.as_mut(), &columns.offset)
+        {
             let name = match column {
                 OffsetColumn::AsIs(n) | OffsetColumn::Log(n) => n,
             };
             if log_offset {
-                values.push(cell(at, name, |v| (!(v > 0.0)).then_some("must be positive to take its logarithm"))?.ln());
+                values.push(
+                    cell(at, name, |v| {
+                        (!(v > 0.0)).then_some("must be positive to take its logarithm")
+                    })?
+                    .ln(),
+                );
             } else {
                 values.push(cell(at, name, |_| None)?);
             }
@@ -158,8 +175,12 @@ mod tests {
     #[test]
     fn reads_columns_and_logs_the_exposure() {
         let text = "n,x,days\n3,0.5,90\n0,1.5,45\n";
-        let spec = read_table(text.as_bytes(), "t.csv", &columns(Some(OffsetColumn::Log("days".into()))))
-            .expect("valid table");
+        let spec = read_table(
+            text.as_bytes(),
+            "t.csv",
+            &columns(Some(OffsetColumn::Log("days".into()))),
+        )
+        .expect("valid table");
         assert_eq!(spec.response, [3.0, 0.0]);
         assert_eq!(spec.predictors[0].1, [0.5, 1.5]);
         let offset = spec.offset.expect("offset given");
@@ -175,7 +196,10 @@ mod tests {
             "t.csv: line 3: column \"x\": \"abc\" is not a number"
         );
         let err = read_table("n,x\n1.5,2\n".as_bytes(), "t.csv", &columns(None)).expect_err("1.5");
-        assert!(err.to_string().starts_with("t.csv: line 2: column \"n\""), "{err}");
+        assert!(
+            err.to_string().starts_with("t.csv: line 2: column \"n\""),
+            "{err}"
+        );
         let err = read_table("n,x\n1,NaN\n".as_bytes(), "t.csv", &columns(None)).expect_err("NaN");
         assert!(err.to_string().contains("line 2") && err.to_string().contains("finite"));
         let err = read_table("n,y\n1,2\n".as_bytes(), "t.csv", &columns(None)).expect_err("no x");

@@ -10,13 +10,15 @@
 //! truncated at the season's length and renormalised. Randomness comes from one seeded
 //! `ChaCha8Rng`, one stream per distribution, so an outlook is reproducible from its seed.
 //!
-//! Submodules: [`scenarios`] (the target season's driver scenarios), [`predictive`]
-//! (scenario x draw mixture of a model), [`references`]
+//! Submodules: [`scenarios`] (the target season's driver scenarios), [`mixture`] (the
+//! equal-weight mixture of truncated count pmfs), [`predictive`] (scenario x draw mixture of
+//! a model), [`references`]
 //! (1991-2020 climatology and trend-only models), [`explain`] (driver effects in words) and
-//! [`cautions`].
+//! [`cautions`](mod@cautions).
 
 pub mod cautions;
 pub mod explain;
+pub mod mixture;
 pub mod predictive;
 pub mod references;
 pub mod scenarios;
@@ -28,9 +30,9 @@ use serde::Serialize;
 pub use cautions::{CautionContext, cautions};
 pub use explain::DriverEffect;
 pub use predictive::{DriverScenarios, predictive_pmf};
-pub use references::{Reference, ReferenceKind};
+pub use references::{OutlookReferences, Reference, ReferenceKind};
 
-use crate::fit::{FitPeriod, GaugeModel, Predictor, PreparedGauge, family_request};
+use crate::fit::{FitPeriod, GaugeModel, Predictor, PreparedGauge};
 use crate::season::Season;
 use crate::verify::TercileEdges;
 
@@ -448,14 +450,18 @@ pub fn build(
     target: &Season,
     options: &OutlookOptions,
 ) -> Result<Outlook, OutlookError> {
-    let family = family_request(prepared.config.model.family);
-    let season_name = target.spec().name();
-    let climatology = references::climatology(&prepared.seasons, season_name, family)?;
-    let trend_only = match references::trend_only(&prepared.seasons, season_name, family) {
-        Ok(reference) => Some(reference),
-        Err(_) if prepared.drivers.sea_level.is_none() => None,
-        Err(e) => return Err(e.into()),
-    };
+    let references = references::fit_references(prepared, target.spec().name())?;
+    build_with(model, &references, prepared, target, options)
+}
+
+/// As [`build`], with references already fitted (by [`references::fit_references`]).
+pub fn build_with(
+    model: &GaugeModel,
+    references: &OutlookReferences,
+    prepared: &PreparedGauge,
+    target: &Season,
+    options: &OutlookOptions,
+) -> Result<Outlook, OutlookError> {
     let scenarios = scenarios::target_scenarios(
         prepared,
         target,
@@ -487,8 +493,8 @@ pub fn build(
         gauge: &gauge,
         target,
         model,
-        climatology: &climatology,
-        trend_only: trend_only.as_ref(),
+        climatology: &references.climatology,
+        trend_only: references.trend_only.as_ref(),
         drivers: &scenarios.drivers,
         last_season: last_season.as_ref(),
         options: &options,

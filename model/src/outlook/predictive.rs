@@ -1,13 +1,14 @@
 //! The predictive distribution of a target season's flood days: an equal-weight mixture over
-//! (driver scenario, parameter draw) pairs, built with the count models' own mixture and
-//! parameter draws ([`crate::glm::PmfMixture`], [`crate::glm::FittedGlm::draw_parameters`]).
+//! (driver scenario, parameter draw) pairs, with the count models' parameter draws
+//! ([`crate::glm::FittedGlm::draw_parameters`]) and the outlook's [`Mixture`].
 
 use rand::Rng;
 use serde::Serialize;
 
 use super::OutlookError;
+use super::mixture::Mixture;
 use crate::fit::{GaugeModel, Predictor};
-use crate::glm::{CountDistribution, PmfMixture};
+use crate::glm::CountDistribution;
 
 /// One driver's values for the target season: one value per scenario (draw), or a single
 /// value when it is known in advance.
@@ -52,14 +53,17 @@ pub fn predictive_pmf(
         model.glm.draw_parameters(rng, draws)
     };
     let offset = f64::from(season_days).ln();
-    let mut mixture = PmfMixture::new(season_days as usize);
+    let mut mixture = Mixture::new(season_days as usize);
     let mut x = vec![0.0; columns.len()];
     for (d, draw) in parameters.iter().enumerate() {
         for (slot, column) in x.iter_mut().zip(&columns) {
             *slot = column.values[d % column.values.len()];
         }
-        // A draw whose mean under- or overflows is skipped; too many skips is an error below.
-        let _ = draw.add_to(&mut mixture, &x, offset);
+        // A draw whose mean is not finite (an absurd coefficient draw) is skipped; too many
+        // skips is an error below.
+        if let Ok(eta) = draw.linear_predictor(&x, offset) {
+            mixture.add(eta.exp(), draw.theta);
+        }
     }
     let used = mixture.components();
     if used * 2 < parameters.len() {
@@ -72,5 +76,5 @@ pub fn predictive_pmf(
         used: 0,
         drawn: parameters.len(),
     })?;
-    Ok(mixed.distribution)
+    Ok(mixed)
 }

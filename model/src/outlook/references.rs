@@ -13,7 +13,7 @@
 
 use serde::Serialize;
 
-use crate::fit::{Design, FitError, GaugeModel, Predictor, SeasonData, fit_design};
+use crate::fit::{Design, FitError, GaugeModel, Predictor, PreparedGauge, SeasonData, fit_design};
 use crate::glm::FamilyRequest;
 
 /// The WMO standard normal period in use (1991-2020).
@@ -117,5 +117,32 @@ pub fn trend_only(
         ),
         fallback: false,
         model,
+    })
+}
+
+/// Both references of a season name at a gauge.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct OutlookReferences {
+    /// The climatology.
+    pub climatology: Reference,
+    /// The trend-only reference, when the gauge has a sea-level trend.
+    pub trend_only: Option<Reference>,
+}
+
+/// Fits both references of `season_name` at a prepared gauge, with the TOML's family.
+pub fn fit_references(
+    prepared: &PreparedGauge,
+    season_name: &str,
+) -> Result<OutlookReferences, FitError> {
+    let family = crate::fit::family_request(prepared.config.model.family);
+    let climatology = climatology(&prepared.seasons, season_name, family)?;
+    let trend_only = match trend_only(&prepared.seasons, season_name, family) {
+        Ok(reference) => Some(reference),
+        Err(_) if prepared.drivers.sea_level.is_none() => None,
+        Err(e) => return Err(e),
+    };
+    Ok(OutlookReferences {
+        climatology,
+        trend_only,
     })
 }

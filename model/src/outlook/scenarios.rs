@@ -39,13 +39,37 @@ pub struct TargetScenarios {
 }
 
 /// Draws `count` scenarios of the target season's drivers for `predictors` (plus the sea
-/// level, always, for the trend-only reference).
+/// level, always, for the trend-only reference), resampling MJO and wind from the past
+/// seasons of the target's name that start before it.
 pub fn target_scenarios(
     prepared: &PreparedGauge,
     target: &Season,
     predictors: &[Predictor],
     count: usize,
     condition_on_enso: bool,
+    rng: &mut ChaCha8Rng,
+) -> Result<TargetScenarios, OutlookError> {
+    let before = |s: &Season| s.first_day() < target.first_day();
+    target_scenarios_from(
+        prepared,
+        target,
+        predictors,
+        count,
+        condition_on_enso,
+        &before,
+        rng,
+    )
+}
+
+/// As [`target_scenarios`], resampling MJO and wind only from past seasons (of the target's
+/// name) that `allowed` accepts, e.g. a hindcast's training seasons.
+pub fn target_scenarios_from(
+    prepared: &PreparedGauge,
+    target: &Season,
+    predictors: &[Predictor],
+    count: usize,
+    condition_on_enso: bool,
+    allowed: &dyn Fn(&Season) -> bool,
     rng: &mut ChaCha8Rng,
 ) -> Result<TargetScenarios, OutlookError> {
     let count = count.max(1);
@@ -65,9 +89,7 @@ pub fn target_scenarios(
         .seasons
         .iter()
         .zip(&prepared.season_predictors)
-        .filter(|(s, _)| {
-            s.season.spec().name() == season_name && s.season.first_day() < target.first_day()
-        })
+        .filter(|(s, _)| s.season.spec().name() == season_name && allowed(&s.season))
         .map(|(_, p)| p.past_season())
         .collect();
     let resampling = if condition_on_enso {
@@ -151,10 +173,10 @@ pub fn target_scenarios(
         }
     }
     if wants(Predictor::Tide) {
-        match &prepared.drivers.tide {
-            Some(tide) => out.push(DriverScenarios {
+        match prepared.tidal_driver(target) {
+            Some(value) => out.push(DriverScenarios {
                 predictor: Predictor::Tide,
-                values: vec![tide.value(target, prepared.drivers.sea_level.as_ref())],
+                values: vec![value],
                 source: format!(
                     "predicted astronomical tide: days whose predicted high water plus the \
                      projected mean sea level comes within {TIDE_MARGIN_M} m of the threshold"

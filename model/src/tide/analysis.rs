@@ -107,7 +107,9 @@ impl AnalysisConfig {
     /// Fits the model to `levels` (NaN = missing) at strictly increasing unix `times`.
     pub fn fit(&self, times: &[i64], levels: &[f64]) -> Result<TideModel, TideError> {
         check_series(times, levels)?;
-        let present: Vec<usize> = (0..times.len()).filter(|&i| levels[i].is_finite()).collect();
+        let present: Vec<usize> = (0..times.len())
+            .filter(|&i| levels[i].is_finite())
+            .collect();
         let (Some(&first_i), Some(&last_i)) = (present.first(), present.last()) else {
             return Err(TideError::TooFewSamples {
                 samples: 0,
@@ -158,9 +160,7 @@ impl AnalysisConfig {
                 end += 1;
             }
             let members = &present[cursor..end];
-            let on_grid = members
-                .iter()
-                .all(|&i| (times[i] - seg_start) % step == 0);
+            let on_grid = members.iter().all(|&i| (times[i] - seg_start) % step == 0);
             seg_rhs.iter_mut().for_each(|v| *v = 0.0);
             if on_grid {
                 filled.iter_mut().for_each(|v| *v = false);
@@ -198,7 +198,15 @@ impl AnalysisConfig {
             }
             mirror_upper(&mut seg_gram, p);
             let rows = layout.rotation(&cons, seg_start, segment, reference_time);
-            rotate_into(&mut normal, &mut rhs, &seg_gram, &seg_rhs, &rows, &mut scratch, p);
+            rotate_into(
+                &mut normal,
+                &mut rhs,
+                &seg_gram,
+                &seg_rhs,
+                &rows,
+                &mut scratch,
+                p,
+            );
             cursor = end;
         }
 
@@ -235,12 +243,10 @@ impl AnalysisConfig {
 
         // Residuals and their spectrum, for the intervals and the summary.
         let present_times: Vec<i64> = present.iter().map(|&i| times[i]).collect();
-        let predicted = model.predict_at(&present_times);
-        let residuals: Vec<f64> = present
-            .iter()
-            .zip(&predicted)
-            .map(|(&i, m)| levels[i] - m)
-            .collect();
+        let mut residuals = model.predict_at(&present_times);
+        for (r, &i) in residuals.iter_mut().zip(&present) {
+            *r = levels[i] - *r;
+        }
         let n = residuals.len() as f64;
         let rss: f64 = residuals.iter().map(|r| r * r).sum();
         let white = rss / (n - p as f64);
@@ -469,12 +475,12 @@ impl BandNoise {
         let resolution_cpd = 24.0 / span_hours.max(1.0);
         let bands: Vec<usize> = cpd.iter().map(|f| f.round() as usize).collect();
         let mut per_constituent = vec![white; cpd.len()];
-        let mut done = vec![false; 16];
+        // Test frequencies of every band holding a constituent, evaluated in one pass.
+        let mut band_tests: Vec<(usize, Vec<f64>)> = Vec::new();
         for &band in &bands {
-            if band >= done.len() || done[band] {
+            if band_tests.iter().any(|(b, _)| *b == band) {
                 continue;
             }
-            done[band] = true;
             let tests: Vec<f64> = if band == 0 {
                 let lo = (2.0 * resolution_cpd).min(0.2);
                 let hi: f64 = 0.45;
@@ -490,23 +496,35 @@ impl BandNoise {
                     .filter(|f| cpd.iter().all(|c| (c - f).abs() > 2.0 * resolution_cpd))
                     .collect()
             };
-            if tests.len() < 3 {
-                continue;
+            if tests.len() >= 3 {
+                band_tests.push((band, tests));
             }
-            let power = periodogram(times, residuals, &tests);
+        }
+        let all: Vec<f64> = band_tests
+            .iter()
+            .flat_map(|(_, t)| t.iter().copied())
+            .collect();
+        let all_power = periodogram(times, residuals, &all);
+        let mut offset = 0;
+        for (band, tests) in &band_tests {
+            let power = &all_power[offset..offset + tests.len()];
+            offset += tests.len();
             for (k, &b) in bands.iter().enumerate() {
-                if b != band {
+                if b != *band {
                     continue;
                 }
-                per_constituent[k] = if band == 0 {
+                per_constituent[k] = if b == 0 {
                     // The test frequencies nearest (in log frequency) to the constituent.
                     let mut near: Vec<(f64, f64)> = tests
                         .iter()
-                        .zip(&power)
+                        .zip(power)
                         .map(|(f, pw)| ((f.ln() - cpd[k].max(1e-6).ln()).abs(), *pw))
                         .collect();
                     near.sort_by(|a, b| a.0.total_cmp(&b.0));
-                    near.iter().take(LONG_PERIOD_NEAREST).map(|x| x.1).sum::<f64>()
+                    near.iter()
+                        .take(LONG_PERIOD_NEAREST)
+                        .map(|x| x.1)
+                        .sum::<f64>()
                         / LONG_PERIOD_NEAREST as f64
                 } else {
                     power.iter().sum::<f64>() / power.len() as f64
@@ -522,45 +540,92 @@ impl BandNoise {
 }
 
 /// Periodogram `|sum r e^{-i w t}|^2 / n` at frequencies in cycles per day (white noise of
-/// variance s2 gives s2 on average).
+/// variance s2 gives s2 on average). All frequencies advance together by rotation from
+/// sample to sample, reseeded exactly every few thousand samples and after irregular gaps.
 fn periodogram(times: &[i64], r: &[f64], freqs_cpd: &[f64]) -> Vec<f64> {
-    let n = r.len() as f64;
-    let t0 = times.first().copied().unwrap_or(0);
-    freqs_cpd
+    let nf = freqs_cpd.len();
+    let w: Vec<f64> = freqs_cpd
         .iter()
-        .map(|f| {
-            let w = 2.0 * std::f64::consts::PI * f / 86_400.0;
-            let (mut sr, mut si) = (0.0, 0.0);
-            let (mut cr, mut ci) = (1.0, 0.0);
-            let mut last: Option<i64> = None;
-            let (mut rot_r, mut rot_i, mut rot_step) = (1.0, 0.0, 0);
-            for (k, (&t, &x)) in times.iter().zip(r).enumerate() {
-                match last {
-                    Some(prev) if k % 4096 != 0 => {
-                        let step = t - prev;
-                        if step != rot_step {
-                            let (s, c) = (w * step as f64).sin_cos();
-                            rot_r = c;
-                            rot_i = s;
-                            rot_step = step;
-                        }
-                        let (a, b) = (cr, ci);
-                        cr = a * rot_r - b * rot_i;
-                        ci = a * rot_i + b * rot_r;
-                    }
-                    _ => {
-                        let (s, c) = (w * (t - t0) as f64).sin_cos();
-                        cr = c;
-                        ci = s;
-                    }
+        .map(|f| 2.0 * std::f64::consts::PI * f / 86_400.0)
+        .collect();
+    let (mut sr, mut si) = (vec![0.0; nf], vec![0.0; nf]);
+    let (mut cr, mut ci) = (vec![0.0; nf], vec![0.0; nf]);
+    let (mut rr, mut ri) = (vec![1.0; nf], vec![0.0; nf]);
+    let mut base_step = 0i64;
+    let t0 = times.first().copied().unwrap_or(0);
+    let mut last = t0;
+    for (k, (&t, &x)) in times.iter().zip(r).enumerate() {
+        let step = t - last;
+        let rotations = if base_step > 0 && step % base_step == 0 {
+            step / base_step
+        } else {
+            0
+        };
+        if k % 4096 == 0 || !(1..=16).contains(&rotations) {
+            if k > 0 && base_step == 0 {
+                base_step = step.max(1);
+                for j in 0..nf {
+                    let (s, c) = (w[j] * base_step as f64).sin_cos();
+                    rr[j] = c;
+                    ri[j] = s;
                 }
-                last = Some(t);
-                sr += x * cr;
-                si += x * ci;
             }
-            (sr * sr + si * si) / n
-        })
+            for j in 0..nf {
+                let (s, c) = (w[j] * (t - t0) as f64).sin_cos();
+                cr[j] = c;
+                ci[j] = s;
+            }
+        } else {
+            for _ in 0..rotations - 1 {
+                rotate_all(&mut cr, &mut ci, &rr, &ri);
+            }
+            rotate_accumulate(&mut cr, &mut ci, &rr, &ri, &mut sr, &mut si, x);
+            last = t;
+            continue;
+        }
+        last = t;
+        for j in 0..nf {
+            sr[j] += x * cr[j];
+            si[j] += x * ci[j];
+        }
+    }
+    let n = r.len() as f64;
+    sr.iter()
+        .zip(&si)
+        .map(|(a, b)| (a * a + b * b) / n)
         .collect()
+}
+
+fn rotate_all(cr: &mut [f64], ci: &mut [f64], rr: &[f64], ri: &[f64]) {
+    let n = cr.len();
+    let (ci, rr, ri) = (&mut ci[..n], &rr[..n], &ri[..n]);
+    for j in 0..n {
+        let (a, b) = (cr[j], ci[j]);
+        cr[j] = a * rr[j] - b * ri[j];
+        ci[j] = a * ri[j] + b * rr[j];
+    }
+}
+
+/// One rotation of every phasor, then `s += x * phasor`, fused so it vectorises.
+fn rotate_accumulate(
+    cr: &mut [f64],
+    ci: &mut [f64],
+    rr: &[f64],
+    ri: &[f64],
+    sr: &mut [f64],
+    si: &mut [f64],
+    x: f64,
+) {
+    let n = cr.len();
+    let (ci, rr, ri, sr, si) = (&mut ci[..n], &rr[..n], &ri[..n], &mut sr[..n], &mut si[..n]);
+    for j in 0..n {
+        let (a, b) = (cr[j], ci[j]);
+        let (na, nb) = (a * rr[j] - b * ri[j], a * ri[j] + b * rr[j]);
+        cr[j] = na;
+        ci[j] = nb;
+        sr[j] += x * na;
+        si[j] += x * nb;
+    }
 }
 
 #[cfg(test)]
@@ -605,15 +670,166 @@ mod tests {
         for l in levels.iter_mut().skip(3000).take(500) {
             *l = f64::NAN;
         }
-        let model = AnalysisParams::default().check().expect("valid").fit(&times, &levels).expect("fits");
+        let model = AnalysisParams::default()
+            .check()
+            .expect("valid")
+            .fit(&times, &levels)
+            .expect("fits");
         assert!((model.mean - 1.5).abs() < 0.002, "mean {}", model.mean);
         for (name, amp, phase) in truth {
             let c = model.constituent(name).expect("selected");
-            assert!((c.amplitude - amp).abs() < 0.002, "{name} amp {}", c.amplitude);
+            assert!(
+                (c.amplitude - amp).abs() < 0.002,
+                "{name} amp {}",
+                c.amplitude
+            );
             let dphase = ((c.phase_deg - phase + 540.0) % 360.0 - 180.0).abs();
             assert!(dphase < 1.0, "{name} phase {}", c.phase_deg);
-            assert!(c.amplitude_ci95 > 0.0 && c.amplitude_ci95 < 0.01, "{name} ci {}", c.amplitude_ci95);
+            assert!(
+                c.amplitude_ci95 > 0.0 && c.amplitude_ci95 < 0.01,
+                "{name} ci {}",
+                c.amplitude_ci95
+            );
         }
-        assert!(model.constituents.len() >= 37, "{}", model.constituents.len());
+        assert!(
+            model.constituents.len() >= 37,
+            "{}",
+            model.constituents.len()
+        );
+    }
+
+    #[test]
+    fn rayleigh_selection_grows_with_record_length() {
+        let twenty_years = constituents::select_rayleigh(20.0 * 8766.0, 1.0);
+        assert_eq!(twenty_years.len(), constituents::STANDARD.len());
+        assert!(constituents::STANDARD.len() >= 37);
+        let month = constituents::select_rayleigh(30.0 * 24.0, 1.0);
+        let names: Vec<&str> = month.iter().map(|c| c.name).collect();
+        for name in ["M2", "S2", "N2", "K1", "O1", "M4"] {
+            assert!(names.contains(&name), "{name} missing from {names:?}");
+        }
+        // K2 and P1 lie within 1/720 cycles per hour of S2 and K1: not resolved in a month.
+        assert!(
+            !names.contains(&"K2") && !names.contains(&"P1"),
+            "{names:?}"
+        );
+        // Two hours resolve nothing below 0.5 cycles per hour, i.e. no constituent.
+        assert!(constituents::select_rayleigh(2.0, 1.0).is_empty());
+    }
+
+    #[test]
+    fn off_grid_samples_fit_like_grid_samples() {
+        let truth = [("M2", 1.0, 100.0), ("K1", 0.3, 20.0), ("O1", 0.2, 300.0)];
+        let (times, levels) = synthetic(24 * 200, 0.0, &truth);
+        let config = AnalysisParams::default().check().expect("valid");
+        let on_grid = config.fit(&times, &levels).expect("fits");
+        // Move every reading by a varying few minutes and re-predict: all off the grid.
+        let moved: Vec<i64> = times
+            .iter()
+            .enumerate()
+            .map(|(k, t)| t + ((k as i64 * 7919) % 600))
+            .collect();
+        let values: Vec<_> = truth
+            .iter()
+            .map(|(n, a, g)| super::super::predict::ConstituentValue {
+                name: n,
+                amplitude: *a,
+                phase_deg: *g,
+            })
+            .collect();
+        let model = TideModel::from_values(1.5, None, times[0], &values).expect("valid");
+        let moved_levels = model.predict_at(&moved);
+        let off_grid = config.fit(&moved, &moved_levels).expect("fits");
+        for (name, amp, _) in truth {
+            let a = on_grid.constituent(name).expect("fitted").amplitude;
+            let b = off_grid.constituent(name).expect("fitted").amplitude;
+            assert!(
+                (a - amp).abs() < 1e-3 && (b - amp).abs() < 1e-3,
+                "{name}: {a} {b}"
+            );
+        }
+    }
+
+    #[test]
+    fn recovers_a_linear_trend() {
+        let truth = [("M2", 1.0, 10.0), ("S2", 0.3, 40.0)];
+        let (times, mut levels) = synthetic(3 * 8766, 0.01, &truth);
+        let mid = times[times.len() / 2];
+        for (t, l) in times.iter().zip(levels.iter_mut()) {
+            *l += 0.004 * (t - mid) as f64 / HOUR / HOURS_PER_YEAR;
+        }
+        let params = AnalysisParams {
+            trend: true,
+            ..AnalysisParams::default()
+        };
+        let model = params
+            .check()
+            .expect("valid")
+            .fit(&times, &levels)
+            .expect("fits");
+        let trend = model.trend_per_year.expect("trend fitted");
+        assert!((trend - 0.004).abs() < 2e-4, "trend {trend}");
+        assert!((model.mean_level_at(mid) - 1.5).abs() < 2e-3);
+    }
+
+    #[test]
+    fn bad_records_are_typed_errors() {
+        let config = AnalysisParams::default().check().expect("valid");
+        assert!(matches!(
+            config.fit(&[0, 3600, 3600], &[1.0, 2.0, 3.0]),
+            Err(TideError::Unsorted { index: 2, .. })
+        ));
+        assert!(matches!(
+            config.fit(&[0, 3600], &[1.0]),
+            Err(TideError::LengthMismatch { .. })
+        ));
+        let times: Vec<i64> = (0..3).map(|k| k * 3600).collect();
+        assert!(matches!(
+            config.fit(&times, &[1.0; 3]),
+            Err(TideError::NoConstituents { .. })
+        ));
+        assert!(matches!(
+            config.fit(&times, &[f64::NAN; 3]),
+            Err(TideError::TooFewSamples { .. })
+        ));
+        let named = AnalysisParams {
+            constituents: Some(vec!["X9".into()]),
+            ..AnalysisParams::default()
+        };
+        assert!(matches!(
+            named.check(),
+            Err(TideError::UnknownConstituent(_))
+        ));
+        let bad = AnalysisParams {
+            rayleigh: f64::NAN,
+            ..AnalysisParams::default()
+        };
+        assert!(matches!(bad.check(), Err(TideError::BadParameter { .. })));
+    }
+
+    #[test]
+    fn prediction_at_scattered_times_matches_regular_prediction() {
+        let values: Vec<_> = constituents::STANDARD
+            .iter()
+            .map(|c| super::super::predict::ConstituentValue {
+                name: c.name,
+                amplitude: 0.1,
+                phase_deg: 33.0,
+            })
+            .collect();
+        let model =
+            TideModel::from_values(0.5, Some(0.003), 1_600_000_000, &values).expect("valid");
+        let start = 1_600_000_000 - 5 * 86_400;
+        let regular = model.predict_regular(start, 600, 24 * 6 * 70);
+        // The same times visited out of order and one at a time.
+        for k in [0usize, 5000, 17, 9000, 3, 8000] {
+            let t = start + k as i64 * 600;
+            let single = model.predict_at(&[t])[0];
+            assert!(
+                (single - regular[k]).abs() < 1e-9,
+                "k {k}: {single} vs {}",
+                regular[k]
+            );
+        }
     }
 }

@@ -107,7 +107,24 @@ pub enum NodalBasis {
     M3,
 }
 
-/// The node-dependent angles of Schureman (1958), degrees, for one node longitude N.
+impl NodalBasis {
+    /// Every basic term, in declaration order.
+    pub const ALL: [NodalBasis; 10] = [
+        NodalBasis::Mm,
+        NodalBasis::Mf,
+        NodalBasis::O1,
+        NodalBasis::J1,
+        NodalBasis::OO1,
+        NodalBasis::K1,
+        NodalBasis::M2,
+        NodalBasis::K2,
+        NodalBasis::L2,
+        NodalBasis::M3,
+    ];
+}
+
+/// The node-dependent angles of Schureman (1958), degrees, for one node longitude N, with
+/// the basic terms' f and u evaluated once.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct NodalAngles {
     /// Inclination of the moon's orbit to the equator.
@@ -122,6 +139,8 @@ pub struct NodalAngles {
     pub two_nu_pp: f64,
     /// Mean longitude of the lunar perigee measured from the intersection, P = p - xi.
     pub big_p: f64,
+    /// f and u of each basic term, in the order of [`NodalBasis::ALL`].
+    table: [(f64, f64); 10],
 }
 
 impl NodalAngles {
@@ -146,14 +165,19 @@ impl NodalAngles {
         let nu_prime = ((2.0 * i).sin() * nu.sin()).atan2((2.0 * i).sin() * nu.cos() + 0.3347);
         let sin2 = i.sin().powi(2);
         let two_nu_pp = (sin2 * (2.0 * nu).sin()).atan2(sin2 * (2.0 * nu).cos() + 0.0727);
-        Self {
+        let mut angles = Self {
             i: deg(i),
             nu: deg(nu),
             xi: deg(xi),
             nu_prime: deg(nu_prime),
             two_nu_pp: deg(two_nu_pp),
             big_p: perigee_deg - deg(xi),
+            table: [(1.0, 0.0); 10],
+        };
+        for (slot, b) in NodalBasis::ALL.iter().enumerate() {
+            angles.table[slot] = angles.evaluate(*b);
         }
+        angles
     }
 
     /// The angles at an instant.
@@ -163,6 +187,10 @@ impl NodalAngles {
 
     /// Nodal factor f and phase u (degrees) of a basic term.
     pub fn basis(&self, b: NodalBasis) -> (f64, f64) {
+        self.table[b as usize]
+    }
+
+    fn evaluate(&self, b: NodalBasis) -> (f64, f64) {
         let rad = f64::to_radians;
         let i = rad(self.i);
         let (nu, xi) = (self.nu, self.xi);
@@ -189,7 +217,10 @@ impl NodalAngles {
                 let t2 = (i / 2.0).tan().powi(2);
                 let two_p = rad(2.0 * self.big_p);
                 let inv_ra = (1.0 - 12.0 * t2 * two_p.cos() + 36.0 * t2 * t2).sqrt();
-                let r = two_p.sin().atan2(1.0 / (6.0 * t2) - two_p.cos()).to_degrees();
+                let r = two_p
+                    .sin()
+                    .atan2(1.0 / (6.0 * t2) - two_p.cos())
+                    .to_degrees();
                 (m2_f * inv_ra, m2_u - r)
             }
             NodalBasis::M3 => ((i / 2.0).cos().powi(6) / 0.8758, 3.0 * xi - 3.0 * nu),

@@ -133,7 +133,9 @@ pub static STANDARD: &[Constituent] = &[
     c!("M4", [4, 0, 0, 0, 0, 0], 0.0, [(M2, 2)]),
     c!("MS4", [4, 2, -2, 0, 0, 0], 0.0, [(M2, 1)]),
     c!("MN4", [4, -1, 0, 1, 0, 0], 0.0, [(M2, 2)]),
-    c!("Sa", [0, 0, 1, 0, 0, 0], 0.0, solar),
+    // Sa as h - p1 (Doodson number 056.554, as in the IHO list, Foreman 1977 and utide);
+    // Schureman (1958) writes it as h alone, 0.0000020 deg/h faster.
+    c!("Sa", [0, 0, 1, 0, 0, -1], 0.0, solar),
     c!("Ssa", [0, 0, 2, 0, 0, 0], 0.0, solar),
     c!("Mm", [0, 1, 0, -1, 0, 0], 0.0, [(Mm, 1)]),
     c!("Mf", [0, 2, 0, 0, 0, 0], 0.0, [(Mf, 1)]),
@@ -202,7 +204,7 @@ pub fn by_name(name: &str) -> Option<&'static Constituent> {
 /// cycles per hour. `rayleigh = 1` is the usual choice.
 pub fn select_rayleigh(span_hours: f64, rayleigh: f64) -> Vec<&'static Constituent> {
     let mut kept: Vec<&'static Constituent> = Vec::new();
-    if !(span_hours > 0.0) {
+    if span_hours.is_nan() || span_hours <= 0.0 {
         return kept;
     }
     let resolution = rayleigh / span_hours;

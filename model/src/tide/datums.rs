@@ -168,7 +168,11 @@ pub struct Datums {
 
 impl DatumsConfig {
     /// The high and low waters of a record (NaN = missing), in time order, alternating.
-    pub fn high_low_waters(&self, times: &[i64], levels: &[f64]) -> Result<Vec<HighLow>, TideError> {
+    pub fn high_low_waters(
+        &self,
+        times: &[i64],
+        levels: &[f64],
+    ) -> Result<Vec<HighLow>, TideError> {
         check_series(times, levels)?;
         let half_window = (self.0.min_separation_hours * HOUR) as i64;
         let mut raw: Vec<(usize, Extreme)> = Vec::new();
@@ -210,9 +214,9 @@ impl DatumsConfig {
         let mut seq = alternate(&raw, levels);
         // Drop high-low pairs smaller than the minimum range, then re-alternate.
         loop {
-            let small = seq.windows(2).position(|w| {
-                (levels[w[0].0] - levels[w[1].0]).abs() < self.0.min_range
-            });
+            let small = seq
+                .windows(2)
+                .position(|w| (levels[w[0].0] - levels[w[1].0]).abs() < self.0.min_range);
             let Some(k) = small else { break };
             seq.drain(k..k + 2);
             seq = alternate(&seq, levels);
@@ -226,7 +230,9 @@ impl DatumsConfig {
     /// Datums of a record (NaN = missing). A record covering 1983-2001 is reduced to it.
     pub fn compute(&self, times: &[i64], levels: &[f64]) -> Result<Datums, TideError> {
         check_series(times, levels)?;
-        let present: Vec<usize> = (0..times.len()).filter(|&i| levels[i].is_finite()).collect();
+        let present: Vec<usize> = (0..times.len())
+            .filter(|&i| levels[i].is_finite())
+            .collect();
         let (Some(&a), Some(&b)) = (present.first(), present.last()) else {
             return Err(TideError::TooFewTides {
                 found: 0,
@@ -294,7 +300,9 @@ impl DatumsConfig {
                 }
             }
         }
-        let days = (0..n_days).filter(|&d| hh[d].is_some() && ll[d].is_some()).count();
+        let days = (0..n_days)
+            .filter(|&d| hh[d].is_some() && ll[d].is_some())
+            .count();
         let mean = |v: &[f64]| v.iter().sum::<f64>() / v.len() as f64;
         let hh: Vec<f64> = hh.into_iter().flatten().collect();
         let ll: Vec<f64> = ll.into_iter().flatten().collect();
@@ -335,10 +343,17 @@ impl Datums {
         control_concurrent: &Datums,
         control_epoch: &Datums,
     ) -> Result<Datums, TideError> {
-        for (name, value) in [("control MN", control_concurrent.mn), ("control GT", control_concurrent.gt)] {
-            if !(value > 0.0) {
+        for (name, value) in [
+            ("control MN", control_concurrent.mn),
+            ("control GT", control_concurrent.gt),
+        ] {
+            if value.is_nan() || value <= 0.0 {
                 return Err(TideError::BadParameter {
-                    name: if name == "control MN" { "control_concurrent.mn" } else { "control_concurrent.gt" },
+                    name: if name == "control MN" {
+                        "control_concurrent.mn"
+                    } else {
+                        "control_concurrent.gt"
+                    },
                     value,
                     expected: "a positive range",
                 });
@@ -409,7 +424,7 @@ fn refine(times: &[i64], levels: &[f64], i: usize, kind: Extreme) -> HighLow {
     }
     let (a, b, c) = (levels[i - 1], levels[i], levels[i + 1]);
     let curvature = a - 2.0 * b + c;
-    if !(curvature.abs() > 0.0) {
+    if curvature.is_nan() || curvature == 0.0 {
         return plain;
     }
     let delta = (0.5 * (a - c) / curvature).clamp(-0.5, 0.5);

@@ -21,8 +21,6 @@ pub use predict::{ConstituentValue, FitSummary, FittedConstituent, TideModel};
 pub use risk::{DailyHigh, ResidualClimatology, RiskCalendar, RiskConfig, RiskDay, RiskParams};
 pub use threshold::{DerivedThreshold, derived_minor_threshold};
 
-
-
 /// Errors of tidal analysis, prediction and datums.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum TideError {
@@ -35,7 +33,9 @@ pub enum TideError {
         levels: usize,
     },
     /// Times not strictly increasing.
-    #[error("times must be strictly increasing: sample {index} (unix time {time}) is not after the one before")]
+    #[error(
+        "times must be strictly increasing: sample {index} (unix time {time}) is not after the one before"
+    )]
     Unsorted {
         /// Index of the offending sample.
         index: usize,
@@ -51,7 +51,9 @@ pub enum TideError {
         parameters: usize,
     },
     /// The record is too short to resolve any constituent.
-    #[error("a record of {span_hours:.1} hours resolves no tidal constituent (at least ~13 hours needed)")]
+    #[error(
+        "a record of {span_hours:.1} hours resolves no tidal constituent (at least ~13 hours needed)"
+    )]
     NoConstituents {
         /// Record span in hours.
         span_hours: f64,
@@ -63,7 +65,9 @@ pub enum TideError {
     #[error("tidal constituent {0:?} given twice")]
     DuplicateConstituent(String),
     /// The normal equations are singular: gaps leave some constituents unresolved.
-    #[error("the normal equations are singular: the record's gaps leave some of the {constituents} constituents unresolved")]
+    #[error(
+        "the normal equations are singular: the record's gaps leave some of the {constituents} constituents unresolved"
+    )]
     Singular {
         /// Number of constituents in the fit.
         constituents: usize,

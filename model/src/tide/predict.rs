@@ -1,8 +1,9 @@
 //! Tide prediction from fitted constituents, with nodal corrections for the target dates.
 //!
-//! Each UTC day is one segment: the equilibrium arguments V are evaluated at the day's start
-//! and f, u at its middle; within the day each constituent's phasor is advanced by complex
-//! rotation rather than a cosine per sample.
+//! Time is cut into 30-day segments (aligned on the unix epoch, as the analysis holds its
+//! nodal corrections over 30 days): the equilibrium arguments V are evaluated exactly at each
+//! segment's start and f, u at its middle; within a segment each constituent's phasor is
+//! advanced by complex rotation rather than a cosine per sample.
 
 use serde::{Deserialize, Serialize};
 
@@ -176,12 +177,28 @@ impl TideModel {
 }
 
 fn regular_times(start: i64, step_seconds: i64, count: usize) -> Vec<i64> {
-    (0..count as i64).map(|k| start + k * step_seconds).collect()
+    (0..count as i64)
+        .map(|k| start + k * step_seconds)
+        .collect()
 }
 
-const DAY_SECONDS: i64 = 86_400;
+/// Length of a segment over which f and u are held.
+const SEGMENT_SECONDS: i64 = 30 * 86_400;
 
-/// Sums constituent phasors day by day, rotating each one from sample to sample.
+/// Sum in four lanes (lets the compiler vectorise; order fixed, so results are repeatable).
+fn sum_lanes(x: &[f64]) -> f64 {
+    let mut lanes = [0.0; 4];
+    let chunks = x.chunks_exact(4);
+    let tail: f64 = chunks.remainder().iter().sum();
+    for c in chunks {
+        for (l, v) in lanes.iter_mut().zip(c) {
+            *l += v;
+        }
+    }
+    lanes.iter().sum::<f64>() + tail
+}
+
+/// Sums constituent phasors segment by segment, rotating each one from sample to sample.
 struct PhasorEngine<'a> {
     model: &'a TideModel,
     /// Angular speeds, radians per second.
@@ -193,7 +210,7 @@ struct PhasorEngine<'a> {
     rot_re: Vec<f64>,
     rot_im: Vec<f64>,
     cached_step: i64,
-    day: Option<i64>,
+    segment: Option<i64>,
     last_time: i64,
 }
 
@@ -213,17 +230,17 @@ impl<'a> PhasorEngine<'a> {
             rot_re: vec![0.0; k],
             rot_im: vec![0.0; k],
             cached_step: 0,
-            day: None,
+            segment: None,
             last_time: 0,
         }
     }
 
-    /// Seeds the phasors exactly at time `t` from the day's astronomical arguments.
-    fn seed(&mut self, day: i64, t: i64) {
-        let day_start = day * DAY_SECONDS;
-        let astro = Astro::at(day_start as f64);
-        let angles = NodalAngles::at(&Astro::at((day_start + DAY_SECONDS / 2) as f64));
-        let dt = (t - day_start) as f64;
+    /// Seeds the phasors exactly at time `t` from the segment's astronomical arguments.
+    fn seed(&mut self, segment: i64, t: i64) {
+        let segment_start = segment * SEGMENT_SECONDS;
+        let astro = Astro::at(segment_start as f64);
+        let angles = NodalAngles::at(&Astro::at((segment_start + SEGMENT_SECONDS / 2) as f64));
+        let dt = (t - segment_start) as f64;
         for (k, c) in self.model.constituents.iter().enumerate() {
             let (f, u) = angles.factor(c.constituent);
             let v = astro.equilibrium_argument(c.constituent);
@@ -232,31 +249,51 @@ impl<'a> PhasorEngine<'a> {
             self.re[k] = f * c.amplitude * co;
             self.im[k] = f * c.amplitude * s;
         }
-        self.day = Some(day);
+        self.segment = Some(segment);
         self.last_time = t;
     }
 
     fn level(&mut self, t: i64) -> f64 {
-        let day = t.div_euclid(DAY_SECONDS);
-        if self.day != Some(day) || t < self.last_time {
-            self.seed(day, t);
-        } else if t != self.last_time {
-            let step = t - self.last_time;
-            if step != self.cached_step {
-                for k in 0..self.omega.len() {
-                    let (s, c) = (self.omega[k] * step as f64).sin_cos();
-                    self.rot_re[k] = c;
-                    self.rot_im[k] = s;
+        let segment = t.div_euclid(SEGMENT_SECONDS);
+        let step = t - self.last_time;
+        if self.segment != Some(segment) || step < 0 {
+            self.seed(segment, t);
+        } else if step > 0 {
+            if self.cached_step == 0 {
+                self.set_rotation(step);
+            }
+            let repeats = step / self.cached_step;
+            if step % self.cached_step == 0 && repeats <= 16 {
+                for _ in 0..repeats {
+                    self.rotate();
                 }
-                self.cached_step = step;
+                self.last_time = t;
+            } else {
+                self.set_rotation(step);
+                self.rotate();
+                self.last_time = t;
             }
-            for k in 0..self.omega.len() {
-                let (a, b) = (self.re[k], self.im[k]);
-                self.re[k] = a * self.rot_re[k] - b * self.rot_im[k];
-                self.im[k] = a * self.rot_im[k] + b * self.rot_re[k];
-            }
-            self.last_time = t;
         }
-        self.re.iter().sum()
+        sum_lanes(&self.re)
+    }
+
+    fn set_rotation(&mut self, step: i64) {
+        for k in 0..self.omega.len() {
+            let (s, c) = (self.omega[k] * step as f64).sin_cos();
+            self.rot_re[k] = c;
+            self.rot_im[k] = s;
+        }
+        self.cached_step = step;
+    }
+
+    fn rotate(&mut self) {
+        let n = self.re.len();
+        let (re, im) = (&mut self.re[..n], &mut self.im[..n]);
+        let (rr, ri) = (&self.rot_re[..n], &self.rot_im[..n]);
+        for k in 0..n {
+            let (a, b) = (re[k], im[k]);
+            re[k] = a * rr[k] - b * ri[k];
+            im[k] = a * ri[k] + b * rr[k];
+        }
     }
 }

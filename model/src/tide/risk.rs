@@ -89,7 +89,11 @@ pub struct ResidualClimatology {
 impl ResidualClimatology {
     /// Builds the distribution from given residuals (NaN dropped).
     pub fn from_residuals(residuals: &[f64]) -> Self {
-        let mut sorted: Vec<f64> = residuals.iter().copied().filter(|r| r.is_finite()).collect();
+        let mut sorted: Vec<f64> = residuals
+            .iter()
+            .copied()
+            .filter(|r| r.is_finite())
+            .collect();
         sorted.sort_by(f64::total_cmp);
         Self { sorted }
     }
@@ -177,14 +181,18 @@ impl RiskConfig {
     pub fn daily_highs(&self, model: &TideModel, first: NaiveDate, days: u32) -> Vec<DailyHigh> {
         let per_day = (DAY_SECONDS / FINE_STEP_SECONDS) as usize;
         let start = self.local_day_start(first);
-        let levels = model.astronomical_regular(start, FINE_STEP_SECONDS, per_day * days as usize + 1);
+        let levels =
+            model.astronomical_regular(start, FINE_STEP_SECONDS, per_day * days as usize + 1);
         (0..days as usize)
             .map(|d| {
                 let window = &levels[d * per_day..(d + 1) * per_day];
-                let (k, _) = window
-                    .iter()
-                    .enumerate()
-                    .fold((0, f64::NEG_INFINITY), |best, (k, &x)| if x > best.1 { (k, x) } else { best });
+                let (k, _) =
+                    window
+                        .iter()
+                        .enumerate()
+                        .fold((0, f64::NEG_INFINITY), |best, (k, &x)| {
+                            if x > best.1 { (k, x) } else { best }
+                        });
                 let i = d * per_day + k;
                 // Parabola through the neighbours (the next day's first reading is there).
                 let (mut time, mut tide) = (start + i as i64 * FINE_STEP_SECONDS, levels[i]);
@@ -229,7 +237,9 @@ impl RiskConfig {
     ) -> Result<ResidualClimatology, TideError> {
         check_series(times, levels)?;
         let months: Vec<u32> = spec.month_sequence().map(|(_, m)| m).collect();
-        let present: Vec<usize> = (0..times.len()).filter(|&i| levels[i].is_finite()).collect();
+        let present: Vec<usize> = (0..times.len())
+            .filter(|&i| levels[i].is_finite())
+            .collect();
         let present_times: Vec<i64> = present.iter().map(|&i| times[i]).collect();
         let predicted = model.predict_at(&present_times);
         let step = present_times
@@ -252,7 +262,8 @@ impl RiskConfig {
                 k += 1;
             }
             let date = date_of_epoch_day(day);
-            if months.contains(&date.month()) && n as f64 >= self.0.min_day_completeness * expected {
+            if months.contains(&date.month()) && n as f64 >= self.0.min_day_completeness * expected
+            {
                 residuals.push(obs - pred);
             }
         }
@@ -350,7 +361,12 @@ mod tests {
 
     #[test]
     fn daily_highs_match_a_one_minute_search() {
-        let m = model(&[("M2", 1.0, 30.0), ("S2", 0.3, 60.0), ("K1", 0.4, 100.0), ("O1", 0.3, 80.0)]);
+        let m = model(&[
+            ("M2", 1.0, 30.0),
+            ("S2", 0.3, 60.0),
+            ("K1", 0.4, 100.0),
+            ("O1", 0.3, 80.0),
+        ]);
         let cfg = config(1.0, 0.1);
         let first = NaiveDate::from_ymd_opt(2026, 12, 1).expect("date");
         let highs = cfg.daily_highs(&m, first, 10);
@@ -358,7 +374,12 @@ mod tests {
             let start = cfg.local_day_start(h.date);
             let fine = m.astronomical_regular(start, 60, 1440);
             let best = fine.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-            assert!((h.tide - best).abs() < 1e-3, "{}: {} vs {best}", h.date, h.tide);
+            assert!(
+                (h.tide - best).abs() < 1e-3,
+                "{}: {} vs {best}",
+                h.date,
+                h.tide
+            );
             assert!(h.time >= start && h.time < start + DAY_SECONDS);
         }
     }
@@ -368,11 +389,20 @@ mod tests {
         // M2 alone: every day's higher high water is f(M2) * 1 m, within 4% of 1 m.
         let m = model(&[("M2", 1.0, 0.0)]);
         let djf = season("2026-DJF");
-        assert_eq!(config(0.9, 0.0).tidal_driver(&m, &djf, 0.0), djf.calendar_days());
+        assert_eq!(
+            config(0.9, 0.0).tidal_driver(&m, &djf, 0.0),
+            djf.calendar_days()
+        );
         assert_eq!(config(1.2, 0.0).tidal_driver(&m, &djf, 0.0), 0);
         // Raising the mean sea level by 0.3 m or the margin by 0.3 m brings them all in.
-        assert_eq!(config(1.2, 0.0).tidal_driver(&m, &djf, 0.3), djf.calendar_days());
-        assert_eq!(config(1.2, 0.3).tidal_driver(&m, &djf, 0.0), djf.calendar_days());
+        assert_eq!(
+            config(1.2, 0.0).tidal_driver(&m, &djf, 0.3),
+            djf.calendar_days()
+        );
+        assert_eq!(
+            config(1.2, 0.3).tidal_driver(&m, &djf, 0.0),
+            djf.calendar_days()
+        );
         // Spring-neap cycle: some days but not all.
         let sn = model(&[("M2", 1.0, 0.0), ("S2", 0.4, 0.0)]);
         let n = config(1.2, 0.0).tidal_driver(&sn, &djf, 0.0);
@@ -387,11 +417,17 @@ mod tests {
         assert_eq!(residuals.len(), 5);
         // Threshold 0.1 m above each day's ~1 m high: residuals 0.1 and 0.2 reach it on days
         // whose high exceeds 1.0, only 0.2 on days below; f(M2) in 2026-27 is ~0.97 -> 1/5.
-        let cal = config(1.1, 0.0).calendar(&m, &djf, 0.0, &residuals).expect("calendar");
+        let cal = config(1.1, 0.0)
+            .calendar(&m, &djf, 0.0, &residuals)
+            .expect("calendar");
         assert_eq!(cal.days.len(), 90);
         for d in &cal.days {
             let need = 1.1 - d.predicted_high;
-            let expected = [-0.2, -0.1, 0.0, 0.1, 0.2].iter().filter(|&&r| r >= need).count() as f64 / 5.0;
+            let expected = [-0.2, -0.1, 0.0, 0.1, 0.2]
+                .iter()
+                .filter(|&&r| r >= need)
+                .count() as f64
+                / 5.0;
             assert!((d.flood_probability - expected).abs() < 1e-12);
         }
         assert!(cal.expected_flood_days > 0.0 && cal.expected_flood_days < 90.0);

@@ -116,6 +116,9 @@ pub struct TideAnalyzeArgs {
     /// Latitude of the gauge in degrees north (for the nodal corrections' reporting).
     #[arg(long)]
     pub latitude: Option<f64>,
+    /// Fit a linear trend along with the mean.
+    #[arg(long)]
+    pub trend: bool,
 }
 
 /// Arguments of `tide predict`.
@@ -141,6 +144,13 @@ pub struct DatumsArgs {
     /// Water-level CSV (`time,level[,flag]`, plain or gzip).
     #[arg(long)]
     pub csv: PathBuf,
+    /// A control gauge's water-level CSV covering the same period, for the modified range
+    /// ratio adjustment of a short record to the control's epoch.
+    #[arg(long, requires = "control_datums")]
+    pub control: Option<PathBuf>,
+    /// The control gauge's accepted epoch datums (JSON as written by `datums`).
+    #[arg(long, requires = "control")]
+    pub control_datums: Option<PathBuf>,
 }
 
 /// Arguments of `score`.
