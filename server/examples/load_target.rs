@@ -76,6 +76,8 @@ fn filler(gauge: &str) -> GaugeResults {
         verdict: api::Verdict::NotMeasured,
         verdict_text: "Load-test filler.".into(),
         seasons_scored: 0,
+        season_name: "DJF".into(),
+        scheme: "none".into(),
         scores: vec![],
     };
     let outlook = api::Outlook {
@@ -96,6 +98,15 @@ fn filler(gauge: &str) -> GaugeResults {
         cautions: vec!["Load-test filler, not an outlook.".into()],
         issued_at: "2026-11-20T00:00:00Z".into(),
         model_version: "load-filler".into(),
+        explanation: vec![],
+        trend_only_mean: None,
+        family: "poisson".into(),
+        fit_period: api::FitPeriod {
+            first: "2000-DJF".into(),
+            last: "2025-DJF".into(),
+            seasons: 26,
+        },
+        notes: vec![],
     };
     GaugeResults {
         model_version: "load-filler".into(),

@@ -4,7 +4,7 @@
 
 use std::collections::BTreeMap;
 use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::{Arc, RwLock};
+use std::sync::{Arc, Mutex, RwLock};
 
 use axum::body::Bytes;
 
@@ -41,7 +41,16 @@ pub struct ServedModel {
     pub hindcast: Prepared<api::Hindcast>,
     /// Each outlook with the gauge's default exceedance days, prepared, by season label.
     pub outlooks: BTreeMap<String, Prepared<api::Outlook>>,
+    /// Outlooks of other seasons computed on demand from this fit, by season label.
+    on_demand: Mutex<BTreeMap<String, OnDemand>>,
 }
+
+/// An outlook computed on demand, or why it could not be (kept too, so a season that cannot
+/// be issued is not recomputed on every request).
+pub type OnDemand = Result<Arc<Prepared<api::Outlook>>, PipelineError>;
+
+/// Most on-demand outlooks one fit keeps (older labels are dropped first by label order).
+pub const MAX_ON_DEMAND: usize = 64;
 
 impl ServedModel {
     /// Prepares results for serving; every outlook gets the standard cautions.
@@ -60,7 +69,30 @@ impl ServedModel {
             results,
             hindcast,
             outlooks,
+            on_demand: Mutex::default(),
         }
+    }
+
+    /// What an on-demand run gave earlier for `label`.
+    pub fn cached(&self, label: &str) -> Option<OnDemand> {
+        self.cache().get(label).cloned()
+    }
+
+    /// Keeps what an on-demand run for `label` gave (bounded by [`MAX_ON_DEMAND`], the
+    /// first labels in order dropped first) and returns it prepared.
+    pub fn keep(&self, label: &str, outcome: Result<api::Outlook, PipelineError>) -> OnDemand {
+        let kept = outcome.map(|o| Arc::new(Prepared::new(o)));
+        let mut cache = self.cache();
+        while cache.len() >= MAX_ON_DEMAND {
+            cache.pop_first();
+        }
+        cache.insert(label.to_owned(), kept.clone());
+        kept
+    }
+
+    fn cache(&self) -> std::sync::MutexGuard<'_, BTreeMap<String, OnDemand>> {
+        // A poisoned cache still holds whole entries: each is inserted in one step.
+        self.on_demand.lock().unwrap_or_else(|p| p.into_inner())
     }
 }
 

@@ -288,14 +288,24 @@ fn store_results(
     Ok(())
 }
 
-/// Loads every stored gauge into the catalog, then marks it loaded (blocking).
+/// Loads every stored gauge into the catalog, gauges in parallel (rayon), then marks it
+/// loaded (blocking).
 pub fn load_catalog(state: &AppState) -> Result<usize, StoreError> {
+    use rayon::prelude::*;
     let ids: Vec<String> = state
         .store
         .call_blocking(|c| Ok(store::list_gauges(c)?.into_iter().map(|g| g.id).collect()))?;
-    for id in &ids {
-        let entry = build_entry(&state.store, id, ModelSource::StoredOrBuild)?;
-        if let Some(entry) = entry {
+    let entries: Vec<(&String, Result<Option<GaugeEntry>, StoreError>)> = ids
+        .par_iter()
+        .map(|id| {
+            (
+                id,
+                build_entry(&state.store, id, ModelSource::StoredOrBuild),
+            )
+        })
+        .collect();
+    for (id, entry) in entries {
+        if let Some(entry) = entry? {
             if let Err(why) = &entry.model {
                 tracing::warn!(gauge = %id, reason = %why, "no model serving");
             }

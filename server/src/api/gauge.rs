@@ -169,4 +169,7 @@ pub struct SeasonRow {
     /// Seasonal predictor values by name (e.g. `enso`, `mjo`, `wind`, `sea_level`, `tide`);
     /// a missing value is absent.
     pub predictors: BTreeMap<String, f64>,
+    /// ENSO category of the season's own months (`la_nina`, `neutral`, `el_nino`), when the
+    /// ENSO index covers them.
+    pub enso_category: Option<String>,
 }

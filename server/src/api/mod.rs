@@ -15,8 +15,9 @@ pub use gauge::{
     SeasonHistory, SeasonRow,
 };
 pub use outlook::{
-    DriverUse, Exceedance, IssuedOutlook, IssuedOutlookList, LastSeason, Outlook, OutlookSet,
-    SeasonVerification, TercileReference, Terciles, Unavailable, exceedance_from_pmf,
+    BrierScore, DriverUse, Exceedance, FitPeriod, IssuedOutlook, IssuedOutlookList, LastSeason,
+    Outlook, OutlookSet, SeasonVerification, TercileReference, Terciles, Unavailable,
+    exceedance_from_pmf,
 };
 pub use problem::Problem;
 pub use skill::{Hindcast, HindcastCase, ScoreRow, Skill, Verdict};

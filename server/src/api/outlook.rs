@@ -45,6 +45,27 @@ pub struct Outlook {
     pub issued_at: String,
     /// Version of the fitted model that made it.
     pub model_version: String,
+    /// Plain sentences on what drives the outlook.
+    pub explanation: Vec<String>,
+    /// Mean flood days expected from the sea-level trend alone, when the gauge has a trend.
+    pub trend_only_mean: Option<f64>,
+    /// Count family of the fitted model: `poisson` or `negative_binomial`.
+    pub family: String,
+    /// The seasons the model was fitted on.
+    pub fit_period: FitPeriod,
+    /// Notes on how the outlook was made (fallbacks, dropped predictors).
+    pub notes: Vec<String>,
+}
+
+/// The seasons a model was fitted on.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FitPeriod {
+    /// First season label.
+    pub first: String,
+    /// Last season label.
+    pub last: String,
+    /// Seasons used.
+    pub seasons: u32,
 }
 
 /// One exceedance probability.
@@ -81,6 +102,11 @@ pub struct Terciles {
     pub near: f64,
     /// `P(N >= e2)`.
     pub above: f64,
+    /// For each edge, the share of the reference's mass at the edge count counted below the
+    /// boundary (the tie rule that gives the reference exactly a third in each category).
+    pub edge_lower_shares: [f64; 2],
+    /// The reference's mean count.
+    pub reference_mean: f64,
 }
 
 /// The last observed season of the same name.
@@ -107,6 +133,14 @@ pub struct DriverUse {
     pub rate_ratio: f64,
     /// 95% confidence interval of `rate_ratio`.
     pub rate_ratio_ci: [f64; 2],
+    /// The step `rate_ratio` is per, in words, e.g. `per 1 degC`.
+    pub per: String,
+    /// 10th and 90th percentile of the value over the outlook's scenarios.
+    pub value_range: [f64; 2],
+    /// The expected count's multiplier from this value against the fit-period mean.
+    pub effect: f64,
+    /// Where the value comes from, in words.
+    pub source: String,
 }
 
 /// `GET /api/v1/outlooks?season=LABEL`: every gauge's outlook for one season.
@@ -170,6 +204,19 @@ pub struct SeasonVerification {
     pub log_score: f64,
     /// Probability the outlook gave to the observed tercile category (climatology reference).
     pub observed_category_probability: f64,
+    /// Ranked probability score over the climatology terciles.
+    pub rps: f64,
+    /// Brier score of each of the outlook's `P(N >= k)`.
+    pub brier: Vec<BrierScore>,
+}
+
+/// The Brier score of one exceedance probability.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct BrierScore {
+    /// The `k` of `P(N >= k)`.
+    pub days: u32,
+    /// `(p - o)^2`, with `o` = 1 when at least `k` flood days were observed.
+    pub score: f64,
 }
 
 /// `P(N >= k)` for each `k` from a pmf: `1 - sum_{j < k} pmf[j]`, clamped to `[0, 1]`.

@@ -25,6 +25,10 @@ pub struct Skill {
     pub verdict_text: String,
     /// Seasons scored out of sample.
     pub seasons_scored: u32,
+    /// The season name the skill was measured on, e.g. `DJF`.
+    pub season_name: String,
+    /// The out-of-sample scheme the scores come from, e.g. `leave_one_year_out`.
+    pub scheme: String,
     /// Mean scores of the model and the references.
     pub scores: Vec<ScoreRow>,
 }
@@ -38,8 +42,8 @@ pub struct ScoreRow {
     pub model: f64,
     /// Mean score of the 1991-2020 climatology.
     pub climatology: f64,
-    /// Mean score of the trend-only model.
-    pub trend_only: f64,
+    /// Mean score of the trend-only model (`null` when the gauge has no sea-level trend).
+    pub trend_only: Option<f64>,
     /// Skill score against climatology: `1 - model / climatology`.
     pub skill_vs_climatology: f64,
 }

@@ -1,5 +1,5 @@
-//! Read endpoints. Prepared bodies are served as cloned `Bytes` with their ETag; nothing
-//! here computes more than a tail sum of a pmf.
+//! Read endpoints. Prepared bodies are served as cloned `Bytes` with their ETag; only an
+//! outlook of a season the fit did not issue is computed (once, off the runtime, then kept).
 
 use std::sync::Arc;
 
@@ -12,11 +12,11 @@ use axum::response::{IntoResponse, Response};
 use serde::Deserialize;
 
 use crate::api;
-use crate::catalog::{GaugeEntry, Prepared};
+use crate::catalog::{GaugeEntry, OnDemand, Prepared, ServedModel};
 use crate::error::AppError;
-use crate::pipeline::{self, PipelineError};
+use crate::pipeline;
 use crate::query;
-use crate::state::AppState;
+use crate::state::{self, AppState};
 use crate::store;
 
 /// Most issued outlooks one request lists.
@@ -187,18 +187,18 @@ pub async fn outlook(
         None => first_served_season(model.outlooks.keys(), &entry)
             .ok_or_else(|| AppError::NotFound(format!("gauge {id:?} serves no outlook")))?,
     };
-    let served = model.outlooks.get(&label).ok_or_else(|| {
-        AppError::Pipeline(PipelineError::SeasonNotServed {
-            gauge: id.clone(),
-            season: label.clone(),
-            served: model
-                .outlooks
-                .keys()
-                .cloned()
-                .collect::<Vec<_>>()
-                .join(", "),
-        })
-    })?;
+    let on_demand;
+    let served = match model.outlooks.get(&label) {
+        Some(served) => served,
+        None => {
+            on_demand = match model.cached(&label) {
+                Some(cached) => cached,
+                None => outlook_on_demand(&state, &entry, Arc::clone(model), &label).await?,
+            }
+            .map_err(AppError::Pipeline)?;
+            &*on_demand
+        }
+    };
     match &query.k {
         None => Ok(prepared(served, "application/json")),
         Some(text) => {
@@ -209,6 +209,36 @@ pub async fn outlook(
             Ok(Json(outlook).into_response())
         }
     }
+}
+
+/// Computes the outlook of a season the fit did not issue, off the runtime (one pipeline run
+/// at a time), and keeps it with the serving model.
+async fn outlook_on_demand(
+    state: &Arc<AppState>,
+    entry: &GaugeEntry,
+    model: Arc<ServedModel>,
+    label: &str,
+) -> Result<OnDemand, AppError> {
+    let target = query::parse_season(label, &entry.meta.seasons).map_err(AppError::BadRequest)?;
+    let _permit = state
+        .pipeline_permits
+        .acquire()
+        .await
+        .map_err(|_| AppError::Internal("pipeline permits closed".into()))?;
+    if let Some(cached) = model.cached(label) {
+        return Ok(cached);
+    }
+    let st = Arc::clone(state);
+    let id = entry.meta.id.clone();
+    tokio::task::spawn_blocking(move || {
+        let inputs = st
+            .store
+            .call_blocking(|c| state::load_inputs(c, &id))?
+            .ok_or_else(|| AppError::NotFound(format!("no gauge named {id:?}")))?;
+        let outcome = pipeline::outlook_for_season(&inputs, &model.results, &target);
+        Ok(model.keep(&target.label(), outcome))
+    })
+    .await?
 }
 
 /// The earliest season (by first day) among served labels.
@@ -356,6 +386,7 @@ mod tests {
                 .iter()
                 .map(|(k, v)| ((*k).to_owned(), *v))
                 .collect::<BTreeMap<_, _>>(),
+            enso_category: None,
         }
     }
 

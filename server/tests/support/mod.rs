@@ -138,6 +138,8 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
         verdict: api::Verdict::NotMeasured,
         verdict_text: "Not yet measured out of sample.".into(),
         seasons_scored: 0,
+        season_name: "DJF".into(),
+        scheme: "leave_one_year_out".into(),
         scores: vec![],
     };
     let outlook = api::Outlook {
@@ -161,6 +163,15 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
         cautions: vec!["A seasonal probability, not a warning.".into()],
         issued_at: "2026-11-20T00:00:00Z".into(),
         model_version: "synthetic-1".into(),
+        explanation: vec![],
+        trend_only_mean: None,
+        family: "poisson".into(),
+        fit_period: api::FitPeriod {
+            first: "2000-DJF".into(),
+            last: "2025-DJF".into(),
+            seasons: 26,
+        },
+        notes: vec![],
     };
     GaugeResults {
         model_version: "synthetic-1".into(),

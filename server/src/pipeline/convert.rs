@@ -1,0 +1,251 @@
+//! Model results -> wire types, field by field (no model type is serialised on the wire).
+
+use tidetally_model::glm::Family;
+use tidetally_model::hindcast::{ModelKind, SchemeHindcast, SeasonHindcast, VerdictKind};
+use tidetally_model::outlook::{self as model_outlook, ReferenceKind};
+use tidetally_model::verify::{crps_count, quantile_count};
+
+use crate::api;
+
+/// The scheme whose scores and cases the service shows (the verdict needs both schemes).
+pub const SHOWN_SCHEME: &str = "leave_one_year_out";
+
+/// What identifies one issued outlook.
+pub struct Issue<'a> {
+    /// Issue time (RFC 3339).
+    pub issued_at: &'a str,
+    /// Model version.
+    pub model_version: &'a str,
+}
+
+fn family_name(family: Family) -> &'static str {
+    match family {
+        Family::Poisson => "poisson",
+        Family::Negbin => "negative_binomial",
+    }
+}
+
+/// A model outlook as served, with the skill of its season name and the service's standard
+/// cautions appended.
+pub fn outlook(o: &model_outlook::Outlook, skill: api::Skill, issue: &Issue<'_>) -> api::Outlook {
+    api::Outlook {
+        gauge: o.gauge_id.clone(),
+        season: o.season.clone(),
+        season_days: o.season_days,
+        pmf: o.pmf.clone(),
+        mean: o.mean,
+        median: o.median,
+        p10: o.p10,
+        p90: o.p90,
+        exceedance: o
+            .exceedance
+            .iter()
+            .map(|e| api::Exceedance {
+                days: e.days,
+                probability: e.probability,
+            })
+            .collect(),
+        terciles: o
+            .terciles
+            .iter()
+            .map(|t| api::Terciles {
+                reference: match t.reference {
+                    ReferenceKind::Climatology => api::TercileReference::Climatology1991To2020,
+                    ReferenceKind::TrendOnly => api::TercileReference::TrendOnly,
+                },
+                edges: t.edges,
+                below: t.below,
+                near: t.near,
+                above: t.above,
+                edge_lower_shares: t.edge_lower_shares,
+                reference_mean: t.reference_mean,
+            })
+            .collect(),
+        climatological_mean: o.climatological_mean,
+        last_season_observed: o.last_season_observed.as_ref().map(|l| api::LastSeason {
+            season: l.season.clone(),
+            flood_days: l.flood_days,
+            observed_days: l.observed_days,
+        }),
+        drivers: o
+            .drivers
+            .iter()
+            .map(|d| api::DriverUse {
+                name: d.name.to_string(),
+                value: d.value,
+                unit: d.unit.to_owned(),
+                rate_ratio: d.rate_ratio,
+                rate_ratio_ci: d.rate_ratio_ci,
+                per: d.per.to_owned(),
+                value_range: [d.value_p10, d.value_p90],
+                effect: d.effect,
+                source: d.source.clone(),
+            })
+            .collect(),
+        skill,
+        cautions: crate::cautions::with_standard(o.cautions.clone()),
+        issued_at: issue.issued_at.to_owned(),
+        model_version: issue.model_version.to_owned(),
+        explanation: o.explanation.clone(),
+        trend_only_mean: o.trend_only_mean,
+        family: family_name(o.family).to_owned(),
+        fit_period: api::FitPeriod {
+            first: o.fit_period.first.clone(),
+            last: o.fit_period.last.clone(),
+            seasons: u32::try_from(o.fit_period.seasons).unwrap_or(u32::MAX),
+        },
+        notes: o.notes.clone(),
+    }
+}
+
+/// The driver values behind an outlook, for the record of issued outlooks.
+pub fn driver_inputs(o: &model_outlook::Outlook) -> serde_json::Value {
+    let drivers: serde_json::Map<String, serde_json::Value> = o
+        .drivers
+        .iter()
+        .map(|d| {
+            (
+                d.name.to_string(),
+                serde_json::json!({
+                    "value": d.value,
+                    "unit": d.unit,
+                    "p10": d.value_p10,
+                    "p90": d.value_p90,
+                    "source": d.source,
+                }),
+            )
+        })
+        .collect();
+    serde_json::Value::Object(drivers)
+}
+
+/// The skill of a season name when no hindcast could be run.
+pub fn skill_not_measured(season_name: &str, why: &str) -> api::Skill {
+    api::Skill {
+        verdict: api::Verdict::NotMeasured,
+        verdict_text: format!(
+            "The skill of {season_name} outlooks at this gauge could not be measured out of \
+             sample ({why}); read the outlook as unverified."
+        ),
+        seasons_scored: 0,
+        season_name: season_name.to_owned(),
+        scheme: SHOWN_SCHEME.to_owned(),
+        scores: Vec::new(),
+    }
+}
+
+fn is_skilful(h: &SeasonHindcast, reference: ModelKind) -> Option<bool> {
+    h.verdict(reference)
+        .map(|v| v.verdict == VerdictKind::Skilful)
+}
+
+/// The verdict of a hindcast: beats climatology (and the trend, when there is one), beats
+/// climatology only, or not better than climatology.
+fn verdict(h: &SeasonHindcast) -> api::Verdict {
+    match (
+        is_skilful(h, ModelKind::Climatology),
+        is_skilful(h, ModelKind::TrendOnly),
+    ) {
+        (None, _) => api::Verdict::NotMeasured,
+        (Some(false), _) => api::Verdict::NoBetterThanClimatology,
+        (Some(true), Some(false)) => api::Verdict::TrendOnly,
+        (Some(true), Some(true) | None) => api::Verdict::BeatsClimatology,
+    }
+}
+
+fn score_rows(scheme: &SchemeHindcast) -> Vec<api::ScoreRow> {
+    let (Some(model), Some(clim)) = (
+        scheme.scores_of(ModelKind::Drivers),
+        scheme.scores_of(ModelKind::Climatology),
+    ) else {
+        return Vec::new();
+    };
+    let trend = scheme.scores_of(ModelKind::TrendOnly);
+    let row = |name: String, m: f64, c: f64, t: Option<f64>| api::ScoreRow {
+        name,
+        model: m,
+        climatology: c,
+        trend_only: t,
+        skill_vs_climatology: 1.0 - m / c,
+    };
+    let mut rows = vec![
+        row("crps".into(), model.crps, clim.crps, trend.map(|t| t.crps)),
+        row("rps".into(), model.rps, clim.rps, trend.map(|t| t.rps)),
+        row(
+            "log_score".into(),
+            model.log_score,
+            clim.log_score,
+            trend.map(|t| t.log_score),
+        ),
+    ];
+    for b in &model.brier {
+        let of = |s: &tidetally_model::hindcast::ModelScores| {
+            s.brier.iter().find(|x| x.days == b.days).map(|x| x.score)
+        };
+        if let Some(c) = of(clim) {
+            rows.push(row(
+                format!("brier_{}", b.days),
+                b.score,
+                c,
+                trend.and_then(of),
+            ));
+        }
+    }
+    rows
+}
+
+/// The skill summary of a season name's hindcast.
+pub fn skill(h: &SeasonHindcast) -> api::Skill {
+    let shown = h.scheme(SHOWN_SCHEME);
+    let mut text: Vec<String> = [ModelKind::Climatology, ModelKind::TrendOnly]
+        .into_iter()
+        .filter_map(|r| h.verdict(r).map(|v| v.sentence.clone()))
+        .collect();
+    if text.is_empty() {
+        text.push(format!(
+            "No {} season could be forecast out of sample, so the outlook's skill is not \
+             measured.",
+            h.season_name
+        ));
+    }
+    api::Skill {
+        verdict: verdict(h),
+        verdict_text: text.join(" "),
+        seasons_scored: shown.map_or(0, |s| u32::try_from(s.cases.len()).unwrap_or(u32::MAX)),
+        season_name: h.season_name.clone(),
+        scheme: SHOWN_SCHEME.to_owned(),
+        scores: shown.map(score_rows).unwrap_or_default(),
+    }
+}
+
+/// The full hindcast of a season name as served.
+pub fn hindcast(gauge: &str, h: &SeasonHindcast, model_version: &str) -> api::Hindcast {
+    let cases = h
+        .scheme(SHOWN_SCHEME)
+        .map(|scheme| {
+            scheme
+                .cases
+                .iter()
+                .filter_map(|c| {
+                    let at = c.means.iter().position(|m| m.model == ModelKind::Drivers)?;
+                    let pmf = c.pmfs.get(at)?;
+                    Some(api::HindcastCase {
+                        season: c.season.clone(),
+                        observed: c.observed,
+                        mean: c.means[at].mean,
+                        p10: quantile_count(pmf, 0.1),
+                        p90: quantile_count(pmf, 0.9),
+                        crps: crps_count(pmf, c.observed),
+                    })
+                })
+                .collect()
+        })
+        .unwrap_or_default();
+    api::Hindcast {
+        gauge: gauge.to_owned(),
+        model_version: model_version.to_owned(),
+        method: SHOWN_SCHEME.to_owned(),
+        skill: skill(h),
+        cases,
+    }
+}
