@@ -1,0 +1,450 @@
+//! The service end to end on a real loopback socket (port 0, a temporary store file): start on
+//! the demo coastline, read every gauge's outlook, upload a researcher's gauge with the write
+//! token, refit it, read its outlook, see a failed refit keep the previous model serving, and
+//! restart on the same store to find everything still there.
+//!
+//! The uploaded gauge is a copy of a demo gauge (same TOML under a new id, same level and wind
+//! files), so its outlook must equal the demo gauge's: the pipeline is deterministic (seeded
+//! draws) and its result depends only on the stored inputs.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use std::io::{Read, Write};
+use std::net::{SocketAddr, TcpStream};
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::time::Duration;
+
+use serde_json::Value;
+use tidetally_server::auth::Token;
+use tidetally_server::store::Store;
+use tidetally_server::{AppState, state};
+
+const TOKEN: &str = "e2e-token-0123456789abcdef";
+const DEMO_GAUGE: &str = "port-tamsin";
+const COPY: &str = "tamsin-copy";
+
+/// Rounding allowance of sums over a pmf of at most a few hundred terms in f64.
+const SUM_TOLERANCE: f64 = 1e-9;
+
+fn demo_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/gauges")
+}
+
+fn temp_dir(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("tidetally-e2e-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    dir
+}
+
+/// One HTTP/1.1 request with `Connection: close`; returns status and body.
+fn http(addr: SocketAddr, method: &str, path: &str, token: bool, body: &[u8]) -> (u16, String) {
+    let mut stream = TcpStream::connect(addr).expect("connect");
+    stream
+        .set_read_timeout(Some(Duration::from_secs(120)))
+        .expect("timeout");
+    let auth = if token {
+        format!("Authorization: Bearer {TOKEN}\r\n")
+    } else {
+        String::new()
+    };
+    let head = format!(
+        "{method} {path} HTTP/1.1\r\nHost: {addr}\r\n{auth}Content-Length: {}\r\nConnection: close\r\n\r\n",
+        body.len()
+    );
+    stream.write_all(head.as_bytes()).expect("write head");
+    stream.write_all(body).expect("write body");
+    let mut raw = Vec::new();
+    stream.read_to_end(&mut raw).expect("read");
+    let text = String::from_utf8_lossy(&raw).into_owned();
+    let (head, body) = text.split_once("\r\n\r\n").expect("a header block");
+    let status = head
+        .split(' ')
+        .nth(1)
+        .and_then(|s| s.parse().ok())
+        .expect("a status");
+    let body = if head
+        .to_ascii_lowercase()
+        .contains("transfer-encoding: chunked")
+    {
+        dechunk(body)
+    } else {
+        body.to_owned()
+    };
+    (status, body)
+}
+
+fn dechunk(mut body: &str) -> String {
+    let mut out = String::new();
+    while let Some((size, rest)) = body.split_once("\r\n") {
+        let n = usize::from_str_radix(size.trim(), 16).unwrap_or(0);
+        if n == 0 {
+            break;
+        }
+        out.push_str(&rest[..n]);
+        body = &rest[n + 2..];
+    }
+    out
+}
+
+/// A request from a blocking thread; the answer's JSON body, checked for `status`.
+async fn call(
+    addr: SocketAddr,
+    method: &'static str,
+    path: &str,
+    body: Vec<u8>,
+    status: u16,
+) -> Value {
+    let path = path.to_owned();
+    let (got, text) = tokio::task::spawn_blocking(move || http(addr, method, &path, true, &body))
+        .await
+        .expect("client task");
+    assert_eq!(got, status, "{method}: {text}");
+    serde_json::from_str(&text).unwrap_or_else(|e| panic!("not JSON ({e}): {text}"))
+}
+
+struct Running {
+    addr: SocketAddr,
+    stop: tokio::sync::oneshot::Sender<()>,
+    server: tokio::task::JoinHandle<std::io::Result<()>>,
+}
+
+/// Opens the store file (seeding it from the demo folder when empty), loads the catalog
+/// (fitting every gauge without a stored fit) and serves on port 0.
+async fn start(db: &Path) -> Running {
+    let store = Store::open(db).expect("store opens");
+    let state = AppState::new(
+        store,
+        Some(Token::new(TOKEN.into())),
+        Duration::from_secs(60),
+    );
+    let loader = Arc::clone(&state);
+    tokio::task::spawn_blocking(move || {
+        let empty = loader
+            .store
+            .call_blocking(|c| tidetally_server::store::list_gauges(c))
+            .expect("store lists")
+            .is_empty();
+        if empty {
+            loader
+                .store
+                .call_blocking(|c| Ok(state::seed_from_dir(c, &demo_dir())))
+                .expect("store")
+                .expect("demo data seeds");
+        }
+        state::load_catalog(&loader).expect("catalog loads")
+    })
+    .await
+    .expect("loader task");
+    let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
+        .await
+        .expect("bind");
+    let addr = listener.local_addr().expect("address");
+    let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
+    let server = tokio::spawn(tidetally_server::run(listener, state, async {
+        let _ = stopped.await;
+    }));
+    Running { addr, stop, server }
+}
+
+async fn stop(running: Running) {
+    running.stop.send(()).expect("server still running");
+    running
+        .server
+        .await
+        .expect("server task")
+        .expect("clean shutdown");
+}
+
+fn f64_of(v: &Value) -> f64 {
+    v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
+}
+
+/// The documented outlook shape (DEVELOPERS.md, "HTTP API") and its internal consistency.
+fn check_outlook(o: &Value) {
+    let gauge = o["gauge"].as_str().expect("gauge id");
+    let pmf: Vec<f64> = o["pmf"].as_array().unwrap().iter().map(f64_of).collect();
+    assert_eq!(
+        pmf.len() as u64,
+        o["season_days"].as_u64().unwrap() + 1,
+        "{gauge}"
+    );
+    assert!(
+        pmf.iter().all(|p| (0.0..=1.0).contains(p)),
+        "{gauge}: {pmf:?}"
+    );
+    let total: f64 = pmf.iter().sum();
+    assert!(
+        (total - 1.0).abs() < SUM_TOLERANCE,
+        "{gauge}: pmf sums to {total}"
+    );
+    let mean: f64 = pmf.iter().enumerate().map(|(k, p)| k as f64 * p).sum();
+    assert!(
+        (mean - f64_of(&o["mean"])).abs() < 1e-6,
+        "{gauge}: mean {mean} vs {}",
+        o["mean"]
+    );
+    for e in o["exceedance"].as_array().unwrap() {
+        let k = e["days"].as_u64().unwrap() as usize;
+        let tail: f64 = pmf[k..].iter().sum();
+        assert!(
+            (tail - f64_of(&e["probability"])).abs() < 1e-6,
+            "{gauge}: P(N >= {k})"
+        );
+    }
+    let refs: Vec<&str> = o["terciles"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|t| t["reference"].as_str().unwrap())
+        .collect();
+    assert!(refs.contains(&"1991-2020 climatology"), "{gauge}: {refs:?}");
+    for t in o["terciles"].as_array().unwrap() {
+        let sum = f64_of(&t["below"]) + f64_of(&t["near"]) + f64_of(&t["above"]);
+        assert!((sum - 1.0).abs() < 1e-6, "{gauge}: terciles sum to {sum}");
+    }
+    let cautions = o["cautions"].as_array().unwrap();
+    assert!(!cautions.is_empty(), "{gauge}: no cautions");
+    let joined = cautions
+        .iter()
+        .map(|c| c.as_str().unwrap().to_lowercase())
+        .collect::<Vec<_>>()
+        .join(" ");
+    assert!(joined.contains("not a warning"), "{gauge}: {joined}");
+    assert!(joined.contains("emergency managers"), "{gauge}: {joined}");
+    let verdict = o["skill"]["verdict"].as_str().unwrap();
+    assert!(
+        [
+            "beats_climatology",
+            "trend_only",
+            "no_better_than_climatology",
+            "not_measured"
+        ]
+        .contains(&verdict),
+        "{gauge}: {verdict}"
+    );
+    assert!(!o["skill"]["verdict_text"].as_str().unwrap().is_empty());
+    assert!(
+        o["skill"]["seasons_scored"].as_u64().unwrap() > 0,
+        "{gauge}: nothing scored"
+    );
+    for d in o["drivers"].as_array().unwrap() {
+        let rr = f64_of(&d["rate_ratio"]);
+        let ci = d["rate_ratio_ci"].as_array().unwrap();
+        assert!(f64_of(&ci[0]) <= rr && rr <= f64_of(&ci[1]), "{gauge}: {d}");
+    }
+    assert!(o["model_version"].as_str().unwrap().contains('+'));
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn demo_outlooks_uploads_refits_and_restarts() {
+    let dir = temp_dir("service");
+    let db = dir.join("store.db");
+    let running = start(&db).await;
+    let addr = running.addr;
+
+    // Every demo gauge serves a real outlook of the first season after its record.
+    let list = call(addr, "GET", "/api/v1/gauges", vec![], 200).await;
+    let gauges = list["gauges"].as_array().unwrap();
+    assert_eq!(gauges.len(), 4, "{list}");
+    for g in gauges {
+        let id = g["id"].as_str().unwrap();
+        assert_eq!(g["model_ready"], true, "{g}");
+        let o = call(
+            addr,
+            "GET",
+            &format!("/api/v1/gauges/{id}/outlook"),
+            vec![],
+            200,
+        )
+        .await;
+        assert_eq!(o["season"], "2026-DJF");
+        check_outlook(&o);
+        let h = call(
+            addr,
+            "GET",
+            &format!("/api/v1/gauges/{id}/hindcast"),
+            vec![],
+            200,
+        )
+        .await;
+        assert_eq!(
+            h["skill"], o["skill"],
+            "{id}: the outlook carries its hindcast's skill"
+        );
+        assert!(!h["cases"].as_array().unwrap().is_empty());
+    }
+    let set = call(addr, "GET", "/api/v1/outlooks?season=2026-DJF", vec![], 200).await;
+    assert_eq!(set["outlooks"].as_array().unwrap().len(), 4, "{set}");
+
+    // The season history carries the predictors and ENSO categories.
+    let history = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{DEMO_GAUGE}/seasons"),
+        vec![],
+        200,
+    )
+    .await;
+    let with_enso = history["seasons"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|s| s["predictors"]["enso"].is_number() && s["enso_category"].is_string())
+        .count();
+    assert!(with_enso > 100, "{with_enso} seasons with ENSO");
+
+    // k overrides the exceedance list; a bad label is a 400 problem.
+    let k = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{DEMO_GAUGE}/outlook?k=1,2"),
+        vec![],
+        200,
+    )
+    .await;
+    let days: Vec<u64> = k["exceedance"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|e| e["days"].as_u64().unwrap())
+        .collect();
+    assert_eq!(days, [1, 2]);
+    call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{DEMO_GAUGE}/outlook?season=2026-XYZ"),
+        vec![],
+        400,
+    )
+    .await;
+
+    // A researcher uploads a copy of a demo gauge under a new id and refits it.
+    let demo = demo_dir();
+    let toml = std::fs::read_to_string(demo.join(format!("{DEMO_GAUGE}.toml")))
+        .unwrap()
+        .replace(
+            &format!("id = \"{DEMO_GAUGE}\""),
+            &format!("id = \"{COPY}\""),
+        );
+    call(
+        addr,
+        "PUT",
+        &format!("/api/v1/gauges/{COPY}"),
+        toml.into_bytes(),
+        200,
+    )
+    .await;
+    let levels = std::fs::read(demo.join(format!("{DEMO_GAUGE}-levels.csv.gz"))).unwrap();
+    call(
+        addr,
+        "PUT",
+        &format!("/api/v1/gauges/{COPY}/levels"),
+        levels,
+        200,
+    )
+    .await;
+    let wind = std::fs::read(demo.join(format!("{DEMO_GAUGE}-wind.csv"))).unwrap();
+    call(
+        addr,
+        "PUT",
+        &format!("/api/v1/drivers/wind/{COPY}"),
+        wind,
+        200,
+    )
+    .await;
+    let before_refit = call(addr, "GET", &format!("/api/v1/gauges/{COPY}"), vec![], 200).await;
+    assert_eq!(before_refit["model_ready"], false);
+    let refit = call(
+        addr,
+        "POST",
+        &format!("/api/v1/gauges/{COPY}/refit"),
+        vec![],
+        200,
+    )
+    .await;
+    assert_eq!(refit["model_ready"], true, "{refit}");
+    let copy = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{COPY}/outlook"),
+        vec![],
+        200,
+    )
+    .await;
+    check_outlook(&copy);
+    let original = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{DEMO_GAUGE}/outlook"),
+        vec![],
+        200,
+    )
+    .await;
+    assert_eq!(
+        copy["pmf"], original["pmf"],
+        "same inputs, same seeded pipeline"
+    );
+    assert_eq!(copy["skill"]["scores"], original["skill"]["scores"]);
+
+    // A refit that fails (a record far too short to fit) keeps the previous model serving.
+    let short = "time,level\n2020-01-01T00:00:00Z,0.10\n2020-01-01T01:00:00Z,0.30\n";
+    call(
+        addr,
+        "PUT",
+        &format!("/api/v1/gauges/{COPY}/levels"),
+        short.into(),
+        200,
+    )
+    .await;
+    let failed = call(
+        addr,
+        "POST",
+        &format!("/api/v1/gauges/{COPY}/refit"),
+        vec![],
+        422,
+    )
+    .await;
+    assert_eq!(failed["type"], "/problems/pipeline-failed", "{failed}");
+    let still = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{COPY}/outlook"),
+        vec![],
+        200,
+    )
+    .await;
+    assert_eq!(still["model_version"], copy["model_version"]);
+    stop(running).await;
+
+    // Restarted on the same store, the uploaded gauge and its stored fit are still served.
+    let running = start(&db).await;
+    let addr = running.addr;
+    let list = call(addr, "GET", "/api/v1/gauges", vec![], 200).await;
+    assert_eq!(list["gauges"].as_array().unwrap().len(), 5);
+    let again = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{COPY}/outlook"),
+        vec![],
+        200,
+    )
+    .await;
+    assert_eq!(again, copy, "the stored fit is served as it was");
+    let issued = call(
+        addr,
+        "GET",
+        &format!("/api/v1/outlooks/issued?gauge={COPY}"),
+        vec![],
+        200,
+    )
+    .await;
+    let issued = issued["issued"].as_array().unwrap();
+    assert_eq!(issued.len(), 1, "one successful fit, one issued outlook");
+    assert!(
+        issued[0]["verification"].is_null(),
+        "2026-DJF is not observed yet"
+    );
+    stop(running).await;
+    let _ = std::fs::remove_dir_all(&dir);
+}
