@@ -109,9 +109,18 @@ struct Running {
     server: tokio::task::JoinHandle<std::io::Result<()>>,
 }
 
-/// Opens the store file (seeding it from the demo folder when empty), loads the catalog
-/// (fitting every gauge without a stored fit) and serves on port 0.
-async fn start(db: &Path) -> Running {
+/// What an empty store starts with.
+#[derive(Clone, Copy, PartialEq)]
+enum Seed {
+    /// The demo coastline.
+    Demo,
+    /// Nothing.
+    Empty,
+}
+
+/// Opens the store file (seeding an empty one as asked), loads the catalog (fitting every
+/// gauge without a stored fit) and serves on port 0.
+async fn start(db: &Path, seed: Seed) -> Running {
     let store = Store::open(db).expect("store opens");
     let state = AppState::new(
         store,
@@ -125,7 +134,7 @@ async fn start(db: &Path) -> Running {
             .call_blocking(|c| tidetally_server::store::list_gauges(c))
             .expect("store lists")
             .is_empty();
-        if empty {
+        if empty && seed == Seed::Demo {
             loader
                 .store
                 .call_blocking(|c| Ok(state::seed_from_dir(c, &demo_dir())))
@@ -240,7 +249,7 @@ fn check_outlook(o: &Value) {
 async fn demo_outlooks_uploads_refits_and_restarts() {
     let dir = temp_dir("service");
     let db = dir.join("store.db");
-    let running = start(&db).await;
+    let running = start(&db, Seed::Demo).await;
     let addr = running.addr;
 
     // Every demo gauge serves a real outlook of the first season after its record.
@@ -418,7 +427,7 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     stop(running).await;
 
     // Restarted on the same store, the uploaded gauge and its stored fit are still served.
-    let running = start(&db).await;
+    let running = start(&db, Seed::Demo).await;
     let addr = running.addr;
     let list = call(addr, "GET", "/api/v1/gauges", vec![], 200).await;
     assert_eq!(list["gauges"].as_array().unwrap().len(), 5);
@@ -444,6 +453,161 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     assert!(
         issued[0]["verification"].is_null(),
         "2026-DJF is not observed yet"
+    );
+    stop(running).await;
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Keeps the rows of a level CSV before `cut` (times in the file's `Z` form sort as text).
+fn levels_before(csv: &[u8], cut: &str) -> Vec<u8> {
+    let text = std::str::from_utf8(csv).expect("UTF-8 levels");
+    let mut out = String::new();
+    for (i, line) in text.lines().enumerate() {
+        if i == 0 || line < cut {
+            out.push_str(line);
+            out.push('\n');
+        }
+    }
+    out.into_bytes()
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
+    let dir = temp_dir("verify");
+    let running = start(&dir.join("store.db"), Seed::Empty).await;
+    let addr = running.addr;
+    let demo = demo_dir();
+    let id = "tamsin-hindsight";
+    let toml = std::fs::read_to_string(demo.join(format!("{DEMO_GAUGE}.toml")))
+        .unwrap()
+        .replace(&format!("id = \"{DEMO_GAUGE}\""), &format!("id = \"{id}\""));
+    call(
+        addr,
+        "PUT",
+        &format!("/api/v1/gauges/{id}"),
+        toml.into_bytes(),
+        200,
+    )
+    .await;
+    for (path, file) in [
+        (
+            "/api/v1/drivers/enso".to_owned(),
+            "../drivers/enso-monthly.csv".to_owned(),
+        ),
+        (
+            "/api/v1/drivers/rmm".to_owned(),
+            "../drivers/rmm-daily.csv".to_owned(),
+        ),
+        (
+            format!("/api/v1/drivers/wind/{id}"),
+            format!("{DEMO_GAUGE}-wind.csv"),
+        ),
+    ] {
+        call(
+            addr,
+            "PUT",
+            &path,
+            std::fs::read(demo.join(file)).unwrap(),
+            200,
+        )
+        .await;
+    }
+    // The record as it stood before 2025-DJF (local midnight at UTC-03:00), and an ENSO
+    // forecast for that season (invented category odds: this test checks the plumbing).
+    let gz = std::fs::read(demo.join(format!("{DEMO_GAUGE}-levels.csv.gz"))).unwrap();
+    let full = tidetally_server::upload::decode_body("levels", &gz, 1 << 30).unwrap();
+    let early = levels_before(&full, "2025-12-01T03:00:00Z");
+    call(
+        addr,
+        "PUT",
+        &format!("/api/v1/gauges/{id}/levels"),
+        early,
+        200,
+    )
+    .await;
+    let forecast = r#"{"season": "2025-DJF", "issued": "2025-11-15",
+        "probabilities": {"la_nina": 0.5, "neutral": 0.4, "el_nino": 0.1}}"#;
+    call(addr, "PUT", "/api/v1/forecasts/enso", forecast.into(), 200).await;
+    call(
+        addr,
+        "POST",
+        &format!("/api/v1/gauges/{id}/refit"),
+        vec![],
+        200,
+    )
+    .await;
+    let o = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{id}/outlook"),
+        vec![],
+        200,
+    )
+    .await;
+    assert_eq!(o["season"], "2025-DJF");
+    check_outlook(&o);
+    let issued_path = format!("/api/v1/outlooks/issued?gauge={id}");
+    let issued = call(addr, "GET", &issued_path, vec![], 200).await;
+    assert!(
+        issued["issued"][0]["verification"].is_null(),
+        "{}",
+        issued["issued"][0]["verification"]
+    );
+
+    // The rest of the record arrives (no refit): the issued outlook is scored against it.
+    call(
+        addr,
+        "PUT",
+        &format!("/api/v1/gauges/{id}/levels"),
+        full,
+        200,
+    )
+    .await;
+    let history = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{id}/seasons"),
+        vec![],
+        200,
+    )
+    .await;
+    let season = history["seasons"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|s| s["season"] == "2025-DJF")
+        .expect("2025-DJF in the record")
+        .clone();
+    let observed = season["flood_days"].as_u64().unwrap() as usize;
+    let issued = call(addr, "GET", &issued_path, vec![], 200).await;
+    let v = &issued["issued"][0]["verification"];
+    assert_eq!(v["observed"].as_u64().unwrap() as usize, observed, "{v}");
+    let pmf: Vec<f64> = o["pmf"].as_array().unwrap().iter().map(f64_of).collect();
+    // CRPS of a count forecast: sum over k of (F(k) - 1{k >= observed})^2 (definition
+    // recalled from memory: Gneiting & Raftery 2007, discretised over counts).
+    let mut cdf = 0.0;
+    let mut crps = 0.0;
+    for (k, p) in pmf.iter().enumerate() {
+        cdf += p;
+        let step = if k >= observed { 1.0 } else { 0.0 };
+        crps += (cdf - step) * (cdf - step);
+    }
+    assert!((f64_of(&v["crps"]) - crps).abs() < 1e-9, "{v} vs {crps}");
+    assert!(
+        (f64_of(&v["log_score"]) + pmf[observed].ln()).abs() < 1e-9,
+        "{v}"
+    );
+    let served = call(
+        addr,
+        "GET",
+        &format!("/api/v1/gauges/{id}/outlook"),
+        vec![],
+        200,
+    )
+    .await;
+    assert_eq!(
+        served["model_version"], o["model_version"],
+        "an upload does not refit"
     );
     stop(running).await;
     let _ = std::fs::remove_dir_all(&dir);
