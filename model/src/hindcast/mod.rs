@@ -47,7 +47,7 @@ use crate::verify::{Bootstrap, VerifyError};
 
 /// Mixture components per forecast unless asked otherwise (the outlook uses more; a hindcast
 /// makes hundreds of forecasts and scores them together).
-pub const DEFAULT_DRAWS: usize = 300;
+pub const DEFAULT_DRAWS: usize = 200;
 
 /// Bootstrap resamples unless asked otherwise.
 pub const DEFAULT_RESAMPLES: usize = 1000;
