@@ -158,6 +158,11 @@ pub const SCHEMAS: &[(&str, &[(&str, &str)])] = &[
             ("cautions", "array"),
             ("issued_at", "string"),
             ("model_version", "string"),
+            ("explanation", "array"),
+            ("trend_only_mean", "number|null"),
+            ("family", "string"),
+            ("fit_period", "object"),
+            ("notes", "array"),
         ],
     ),
     (
