@@ -1,8 +1,11 @@
 #!/usr/bin/env bash
-# Load test of the read path: wrk against `tidetally`'s precomputed outlook, the gauge list,
-# an outlook with custom k (re-serialized per request) and /healthz; nginx serving the same
-# outlook bytes as a static file gives a same-machine baseline, so the figures can be quoted
-# as ratios on a shared, noisy machine. Prints the median of RUNS runs per target.
+# Load test of the read path: `tidetally serve` on the demo coastline (real fitted outlooks,
+# startup fits into a fresh store), wrk against one gauge's precomputed outlook, an outlook
+# with custom k (re-serialized per request), all gauges' outlooks (assembled and serialized
+# per request), the gauge list and /healthz; nginx serving the same outlook bytes as a static
+# file gives a same-machine baseline, so the figures can be quoted as ratios on a shared,
+# noisy machine. Prints the median of RUNS runs per target (req/s and p99 latency), the
+# startup time to ready, and the median single-request latency of the all-gauges outlook.
 #
 #   server/bench/load.sh            # RUNS=3 DURATION=10s CONNECTIONS=64 THREADS=2
 #
@@ -26,10 +29,10 @@ if ! need wrk || ! need nginx; then
 fi
 NGINX=$(command -v nginx || echo /usr/sbin/nginx)
 
-echo "== building the load target ($PROFILE)" >&2
-cargo build -q --profile "$PROFILE" -p tidetally-server --example load_target
-BIN="target/$PROFILE/examples/load_target"
-[ "$PROFILE" = dev ] && BIN="target/debug/examples/load_target"
+echo "== building tidetally ($PROFILE)" >&2
+cargo build -q --profile "$PROFILE" -p tidetally-server --bin tidetally
+BIN="target/$PROFILE/tidetally"
+[ "$PROFILE" = dev ] && BIN="target/debug/tidetally"
 
 WORK=$(mktemp -d)
 SERVER_PID=""
@@ -40,14 +43,18 @@ cleanup() {
 }
 trap cleanup EXIT
 
-"$BIN" "127.0.0.1:$PORT" 20 >"$WORK/server.out" 2>"$WORK/server.err" &
+START=$(date +%s.%N)
+env -u TIDETALLY_TOKEN "$BIN" serve --data demo-data/gauges --db "$WORK/bench.db" \
+    --addr "127.0.0.1:$PORT" >"$WORK/server.out" 2>"$WORK/server.err" &
 SERVER_PID=$!
-for _ in $(seq 100); do
+for _ in $(seq 1200); do
     curl -fs "http://127.0.0.1:$PORT/readyz" >/dev/null 2>&1 && break
-    sleep 0.1
+    sleep 0.05
 done
+READY=$(date +%s.%N)
+echo "startup to ready (seed + fit of the 4 demo gauges): $(echo "$READY - $START" | bc) s"
 
-OUTLOOK="/api/v1/gauges/g07/outlook?season=2026-DJF"
+OUTLOOK="/api/v1/gauges/port-tamsin/outlook?season=2026-DJF"
 curl -fs "http://127.0.0.1:$PORT$OUTLOOK" >"$WORK/outlook.json"
 mkdir -p "$WORK/www"
 cp "$WORK/outlook.json" "$WORK/www/outlook.json"
@@ -65,22 +72,33 @@ http {
 CONF
 "$NGINX" -c "$WORK/nginx.conf" -p "$WORK"
 
-median_rps() {
-    local url=$1 values=()
+median() { sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'; }
+
+# Median over RUNS of req/s and of the p99 latency (ms) that wrk reports.
+median_rps_p99() {
+    local url=$1 rps=() p99=() out
     for _ in $(seq "$RUNS"); do
-        values+=("$(wrk -t"$THREADS" -c"$CONNECTIONS" -d"$DURATION" "$url" | awk '/Requests\/sec/ {print $2}')")
+        out=$(wrk --latency -t"$THREADS" -c"$CONNECTIONS" -d"$DURATION" "$url")
+        rps+=("$(echo "$out" | awk '/Requests\/sec/ {print $2}')")
+        p99+=("$(echo "$out" | awk '$1 == "99%" {v=$2; if (v ~ /us$/) {sub(/us/,"",v); v/=1000} else if (v ~ /ms$/) {sub(/ms/,"",v)} else if (v ~ /s$/) {sub(/s/,"",v); v*=1000}; print v}')")
     done
-    printf '%s\n' "${values[@]}" | sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'
+    echo "$(printf '%s\n' "${rps[@]}" | median) $(printf '%s\n' "${p99[@]}" | median)"
 }
 
 echo "bytes of one outlook: $(wc -c <"$WORK/outlook.json")"
-printf '%-44s %12s\n' target "median req/s"
+ALL="http://127.0.0.1:$PORT/api/v1/outlooks?season=2026-DJF"
+echo "all-gauges outlook, one request at a time, median of 51: $(
+    for _ in $(seq 51); do curl -s -o /dev/null -w '%{time_total}\n' "$ALL"; done |
+        awk '{print $1 * 1000}' | median) ms ($(curl -s "$ALL" | wc -c) bytes)"
+printf '%-44s %12s %10s\n' target "median req/s" "p99 ms"
 for target in \
     "tidetally outlook (precomputed)|http://127.0.0.1:$PORT$OUTLOOK" \
-    "tidetally outlook with k=1,5,10,20|http://127.0.0.1:$PORT/api/v1/gauges/g07/outlook?k=1,5,10,20" \
-    "tidetally gauge list (20 gauges)|http://127.0.0.1:$PORT/api/v1/gauges" \
+    "tidetally outlook with k=1,5,10,20|http://127.0.0.1:$PORT/api/v1/gauges/port-tamsin/outlook?k=1,5,10,20" \
+    "tidetally all gauges' outlooks (4)|$ALL" \
+    "tidetally gauge list (4 gauges)|http://127.0.0.1:$PORT/api/v1/gauges" \
     "tidetally /healthz|http://127.0.0.1:$PORT/healthz" \
     "nginx static copy of the outlook|http://127.0.0.1:$NGINX_PORT/outlook.json"; do
-    printf '%-44s %12s\n' "${target%%|*}" "$(median_rps "${target#*|}")"
+    read -r rps p99 <<<"$(median_rps_p99 "${target#*|}")"
+    printf '%-44s %12s %10s\n' "${target%%|*}" "$rps" "$p99"
 done
 echo "($THREADS wrk threads, $CONNECTIONS connections, $DURATION x $RUNS runs; wrk shares the cores)"

@@ -293,11 +293,16 @@ pub async fn outlooks(
             .map_err(|_| format!("gauge {gauge} does not define season {name}"))
             .and_then(|_| entry.model.as_ref().map_err(ToString::to_string))
             .and_then(|model| {
-                model
-                    .outlooks
-                    .get(&label)
-                    .map(|p| p.value.clone())
-                    .ok_or_else(|| format!("no outlook issued for {label}"))
+                match model.outlooks.get(&label) {
+                    Some(p) => Ok(p.value.clone()),
+                    None => match model.cached(&label) {
+                        Some(Ok(p)) => Ok(p.value.clone()),
+                        Some(Err(why)) => Err(why.to_string()),
+                        None => Err(format!(
+                            "no outlook issued for {label}; GET /api/v1/gauges/{gauge}/outlook?season={label} computes it"
+                        )),
+                    },
+                }
             });
         match outcome {
             Ok(outlook) => set.outlooks.push(outlook),
