@@ -67,15 +67,104 @@ pub enum SeedError {
     Store(#[from] StoreError),
 }
 
-/// Stores every gauge TOML in `dir` (sorted by file name) with the files it names. Returns
-/// the number of gauges stored.
-pub fn seed_from_dir(conn: &mut Connection, dir: &Path) -> Result<usize, SeedError> {
-    let read = |path: &Path| {
-        std::fs::read(path).map_err(|error| SeedError::Read {
-            path: path.to_owned(),
-            error,
-        })
+/// One gauge of a data folder, read and checked, ready to store.
+struct SeedGauge {
+    record: GaugeRecord,
+    levels: store::LevelsRecord,
+    series: Vec<SeriesRecord>,
+    forecast: Option<(api::EnsoForecast, String)>,
+}
+
+fn read_file(path: &Path) -> Result<Vec<u8>, SeedError> {
+    std::fs::read(path).map_err(|error| SeedError::Read {
+        path: path.to_owned(),
+        error,
+    })
+}
+
+/// Reads a gauge TOML and the files it names, and checks them as uploads are checked.
+fn read_seed_gauge(toml_path: &Path, now: &str) -> Result<SeedGauge, SeedError> {
+    let invalid = |path: &Path, problem| SeedError::Invalid {
+        path: path.to_owned(),
+        problem,
     };
+    let text = String::from_utf8_lossy(&read_file(toml_path)?).into_owned();
+    let meta = upload::parse_gauge_toml(&text).map_err(|e| invalid(toml_path, e))?;
+    let base = toml_path.parent().unwrap_or(Path::new("."));
+    let levels_path = base.join(&meta.levels_file);
+    let csv = upload::decode_body(
+        "water levels",
+        &read_file(&levels_path)?,
+        upload::MAX_DECOMPRESSED_BYTES,
+    )
+    .map_err(|e| invalid(&levels_path, e))?;
+    let summary = upload::scan_csv(CsvKind::Levels, &csv).map_err(|e| invalid(&levels_path, e))?;
+    let levels = store::LevelsRecord {
+        gauge_id: meta.id.clone(),
+        content_hash: etag_of(&csv),
+        csv,
+        readings: summary.rows,
+        first_time: summary.first,
+        last_time: summary.last,
+        uploaded_at: now.to_owned(),
+    };
+    let wanted = [
+        (meta.drivers.enso.as_ref(), SeriesKey::Enso, CsvKind::Enso),
+        (meta.drivers.rmm.as_ref(), SeriesKey::Rmm, CsvKind::Rmm),
+        (
+            meta.drivers.wind.as_ref(),
+            SeriesKey::Wind(meta.id.clone()),
+            CsvKind::Wind,
+        ),
+    ];
+    let mut series = Vec::new();
+    for (file, key, kind) in wanted {
+        let Some(file) = file else { continue };
+        let path = base.join(file);
+        let csv = upload::decode_body(
+            kind.describe(),
+            &read_file(&path)?,
+            upload::MAX_DECOMPRESSED_BYTES,
+        )
+        .map_err(|e| invalid(&path, e))?;
+        let summary = upload::scan_csv(kind, &csv).map_err(|e| invalid(&path, e))?;
+        series.push(SeriesRecord {
+            key,
+            content_hash: etag_of(&csv),
+            csv,
+            rows: summary.rows,
+            uploaded_at: now.to_owned(),
+        });
+    }
+    let forecast = match &meta.drivers.enso_forecast {
+        Some(file) => {
+            let path = base.join(file);
+            let bytes = read_file(&path)?;
+            let forecast = upload::parse_enso_forecast(&bytes).map_err(|e| invalid(&path, e))?;
+            Some((forecast, String::from_utf8_lossy(&bytes).into_owned()))
+        }
+        None => None,
+    };
+    Ok(SeedGauge {
+        record: GaugeRecord {
+            id: meta.id.clone(),
+            toml: text,
+            name: meta.name.clone(),
+            latitude: meta.latitude,
+            longitude: meta.longitude,
+            updated_at: now.to_owned(),
+        },
+        levels,
+        series,
+        forecast,
+    })
+}
+
+/// Stores every gauge TOML in `dir` (sorted by file name) with the files it names; the files
+/// are read and checked in parallel (rayon), then stored in file-name order. Returns the
+/// number of gauges stored.
+pub fn seed_from_dir(conn: &mut Connection, dir: &Path) -> Result<usize, SeedError> {
+    use rayon::prelude::*;
     let entries = std::fs::read_dir(dir).map_err(|error| SeedError::Read {
         path: dir.to_owned(),
         error,
@@ -86,82 +175,18 @@ pub fn seed_from_dir(conn: &mut Connection, dir: &Path) -> Result<usize, SeedErr
         .collect();
     tomls.sort();
     let now = store::now_rfc3339();
-    for toml_path in &tomls {
-        let invalid = |path: &Path, problem| SeedError::Invalid {
-            path: path.to_owned(),
-            problem,
-        };
-        let text = String::from_utf8_lossy(&read(toml_path)?).into_owned();
-        let meta = upload::parse_gauge_toml(&text).map_err(|e| invalid(toml_path, e))?;
-        let base = toml_path.parent().unwrap_or(Path::new("."));
-        store::put_gauge(
-            conn,
-            &GaugeRecord {
-                id: meta.id.clone(),
-                toml: text,
-                name: meta.name.clone(),
-                latitude: meta.latitude,
-                longitude: meta.longitude,
-                updated_at: now.clone(),
-            },
-        )?;
-        let levels_path = base.join(&meta.levels_file);
-        let csv = upload::decode_body(
-            "water levels",
-            &read(&levels_path)?,
-            upload::MAX_DECOMPRESSED_BYTES,
-        )
-        .map_err(|e| invalid(&levels_path, e))?;
-        let summary =
-            upload::scan_csv(CsvKind::Levels, &csv).map_err(|e| invalid(&levels_path, e))?;
-        store::put_levels(
-            conn,
-            &store::LevelsRecord {
-                gauge_id: meta.id.clone(),
-                content_hash: etag_of(&csv),
-                csv,
-                readings: summary.rows,
-                first_time: summary.first,
-                last_time: summary.last,
-                uploaded_at: now.clone(),
-            },
-        )?;
-        let series = [
-            (meta.drivers.enso.as_ref(), SeriesKey::Enso, CsvKind::Enso),
-            (meta.drivers.rmm.as_ref(), SeriesKey::Rmm, CsvKind::Rmm),
-            (
-                meta.drivers.wind.as_ref(),
-                SeriesKey::Wind(meta.id.clone()),
-                CsvKind::Wind,
-            ),
-        ];
-        for (file, key, kind) in series {
-            let Some(file) = file else { continue };
-            let path = base.join(file);
-            let csv = upload::decode_body(
-                kind.describe(),
-                &read(&path)?,
-                upload::MAX_DECOMPRESSED_BYTES,
-            )
-            .map_err(|e| invalid(&path, e))?;
-            let summary = upload::scan_csv(kind, &csv).map_err(|e| invalid(&path, e))?;
-            store::put_series(
-                conn,
-                &SeriesRecord {
-                    key,
-                    content_hash: etag_of(&csv),
-                    csv,
-                    rows: summary.rows,
-                    uploaded_at: now.clone(),
-                },
-            )?;
+    let gauges: Vec<SeedGauge> = tomls
+        .par_iter()
+        .map(|path| read_seed_gauge(path, &now))
+        .collect::<Result<_, _>>()?;
+    for gauge in &gauges {
+        store::put_gauge(conn, &gauge.record)?;
+        store::put_levels(conn, &gauge.levels)?;
+        for series in &gauge.series {
+            store::put_series(conn, series)?;
         }
-        if let Some(file) = &meta.drivers.enso_forecast {
-            let path = base.join(file);
-            let bytes = read(&path)?;
-            let forecast = upload::parse_enso_forecast(&bytes).map_err(|e| invalid(&path, e))?;
-            let json = String::from_utf8_lossy(&bytes);
-            store::put_forecast(conn, &forecast.season, &forecast.issued, &json, &now)?;
+        if let Some((forecast, json)) = &gauge.forecast {
+            store::put_forecast(conn, &forecast.season, &forecast.issued, json, &now)?;
         }
     }
     Ok(tomls.len())
