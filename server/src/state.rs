@@ -246,13 +246,14 @@ pub fn build_entry(
         readings: l.readings,
         uploaded_at: l.uploaded_at.clone(),
     });
-    let history = pipeline::season_history(&inputs).map(|h| Arc::new(Prepared::new(h)));
+    let history_now = || pipeline::season_history(&inputs).map(|h| Arc::new(Prepared::new(h)));
     let stored = match source {
         ModelSource::StoredOrBuild => store
             .call_blocking(|c| store::latest_model(c, id))?
             .and_then(|m| serde_json::from_str::<GaugeResults>(&m.results_json).ok()),
         ModelSource::Build => None,
         ModelSource::Keep(model) => {
+            let history = history_now();
             return Ok(Some(GaugeEntry {
                 meta: inputs.meta,
                 record,
@@ -262,9 +263,12 @@ pub fn build_entry(
         }
     };
     let stored_version = stored.as_ref().map(|r| r.model_version.clone());
-    let model = match stored {
-        Some(results) => Ok(results),
-        None => pipeline::build_gauge(&inputs),
+    let (history, model) = match stored {
+        Some(results) => (history_now(), Ok(results)),
+        None => {
+            let (history, model) = pipeline::build_with_history(&inputs);
+            (history.map(|h| Arc::new(Prepared::new(h))), model)
+        }
     };
     if let (Ok(results), None) = (&model, &stored_version) {
         store.call_blocking(|c| store_results(c, id, results))?;

@@ -93,12 +93,7 @@ pub struct GaugeResults {
 pub fn season_history(inputs: &GaugeInputs) -> Result<api::SeasonHistory, PipelineError> {
     let config = prepare::gauge_config(inputs)?;
     let rows = match prepare_gauge(inputs, TideAnalysis::Skip) {
-        Ok(prepared) => prepared
-            .seasons
-            .iter()
-            .zip(&prepared.season_predictors)
-            .map(|(season, predictors)| season_row_with_drivers(season, predictors))
-            .collect(),
+        Ok(prepared) => return Ok(history_of(&prepared)),
         Err(why) => {
             tracing::warn!(gauge = %inputs.meta.id, reason = %why, "season history without drivers");
             let record = prepare::gauge_record(inputs, &config)?;
@@ -111,6 +106,21 @@ pub fn season_history(inputs: &GaugeInputs) -> Result<api::SeasonHistory, Pipeli
         flood_threshold_m: config.flood_threshold_m,
         seasons: rows,
     })
+}
+
+/// The season history of a prepared gauge, predictors joined.
+fn history_of(prepared: &PreparedGauge) -> api::SeasonHistory {
+    api::SeasonHistory {
+        gauge: prepared.config.id.clone(),
+        datum: prepared.config.datum.clone(),
+        flood_threshold_m: prepared.config.flood_threshold_m,
+        seasons: prepared
+            .seasons
+            .iter()
+            .zip(&prepared.season_predictors)
+            .map(|(season, predictors)| season_row_with_drivers(season, predictors))
+            .collect(),
+    }
 }
 
 /// Model season row -> wire season row (counts only).
@@ -146,6 +156,9 @@ fn season_row_with_drivers(
         .drivers
         .iter()
         .filter_map(|(p, v)| match v {
+            // The tide is left out so the history is the same whether or not the harmonic
+            // analysis ran (it runs only for a fit).
+            fit::DriverValue::Known(_) if *p == fit::Predictor::Tide => None,
             fit::DriverValue::Known(v) => Some((p.to_string(), *v)),
             fit::DriverValue::Missing(_) => None,
         })
@@ -232,7 +245,29 @@ fn issue_outlook(
 /// target season (the first season after the record).
 pub fn build_gauge(inputs: &GaugeInputs) -> Result<GaugeResults, PipelineError> {
     prepare::require_levels(inputs)?;
-    let mut prepared = prepare_gauge(inputs, TideAnalysis::AsConfigured)?;
+    build_from(inputs, prepare_gauge(inputs, TideAnalysis::AsConfigured)?)
+}
+
+/// As [`build_gauge`], with the season history from the same preparation (one read of the
+/// record instead of two).
+pub fn build_with_history(
+    inputs: &GaugeInputs,
+) -> (
+    Result<api::SeasonHistory, PipelineError>,
+    Result<GaugeResults, PipelineError>,
+) {
+    let prepared = prepare::require_levels(inputs)
+        .and_then(|_| prepare_gauge(inputs, TideAnalysis::AsConfigured));
+    match prepared {
+        Ok(prepared) => (Ok(history_of(&prepared)), build_from(inputs, prepared)),
+        Err(why) => (season_history(inputs), Err(why)),
+    }
+}
+
+fn build_from(
+    inputs: &GaugeInputs,
+    mut prepared: PreparedGauge,
+) -> Result<GaugeResults, PipelineError> {
     let target = prepared.default_target().ok_or_else(|| {
         PipelineError::MissingInput(format!(
             "gauge {} has no observed day in its level record, so there is no season to issue",
