@@ -14,6 +14,7 @@
 
 pub mod daily;
 pub mod drivers;
+pub mod fit;
 pub mod gauge;
 pub mod glm;
 pub mod hindcast;

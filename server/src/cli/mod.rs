@@ -6,7 +6,9 @@ use std::path::PathBuf;
 use clap::{Args, Parser, Subcommand};
 
 mod counts;
+mod fit;
 mod glm;
+mod outlook;
 mod score;
 mod serve;
 mod tide;
@@ -36,6 +38,11 @@ pub enum Command {
     Datums(DatumsArgs),
     /// Verification scores of given forecasts.
     Score(ScoreArgs),
+    /// Fit the gauge's count model of each season name (coefficients, rate ratios, family
+    /// test, fit period, seasons left out).
+    Fit(GaugeArgs),
+    /// The seasonal outlook of flood days for a target season.
+    Outlook(OutlookArgs),
 }
 
 /// Arguments of `serve`.
@@ -154,6 +161,27 @@ pub struct ScoreArgs {
     pub input: PathBuf,
 }
 
+/// Arguments of `outlook`.
+#[derive(Debug, Args)]
+pub struct OutlookArgs {
+    /// The gauge's TOML file; it names its data files relative to itself.
+    #[arg(long)]
+    pub gauge: PathBuf,
+    /// Target season label, e.g. 2026-DJF (default: the first season starting after the
+    /// record's last observed day).
+    #[arg(long)]
+    pub season: Option<String>,
+    /// Mixture components (driver scenario x parameter draw pairs).
+    #[arg(long, default_value_t = tidetally_model::outlook::DEFAULT_DRAWS)]
+    pub draws: usize,
+    /// Seed of the random streams (the same seed gives the same outlook).
+    #[arg(long, default_value_t = tidetally_model::outlook::DEFAULT_SEED)]
+    pub seed: u64,
+    /// Resample MJO and wind only from past seasons of each scenario's ENSO category.
+    #[arg(long)]
+    pub condition_on_enso: bool,
+}
+
 /// Runs one parsed command.
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
@@ -164,6 +192,8 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
         Command::Tide(TideCommand::Predict(args)) => tide::predict(args),
         Command::Datums(args) => tide::datums(args),
         Command::Score(args) => score::run(args),
+        Command::Fit(args) => fit::run(args),
+        Command::Outlook(args) => outlook::run(args),
     }
 }
 
