@@ -1,4 +1,54 @@
 //! tidetally's edge: the HTTP service, the store and the command-line tool. Depends on
 //! `tidetally-model`; the model never depends on this crate.
+//!
+//! Entry points: [`app`] builds the router over a shared [`AppState`], [`run`] serves it on a
+//! listener until a shutdown future resolves, and [`cli`] is the command line.
+#![cfg_attr(test, allow(clippy::unwrap_used))]
 
+pub mod api;
+pub mod auth;
+pub mod catalog;
 pub mod cli;
+pub mod config;
+mod cors;
+pub mod error;
+pub mod middleware;
+pub mod openapi;
+pub mod pipeline;
+pub mod query;
+pub mod routes;
+pub mod state;
+pub mod store;
+pub mod upload;
+
+use std::future::Future;
+use std::sync::Arc;
+
+pub use routes::HttpOptions;
+pub use state::AppState;
+
+/// The service's router over `state`, with default HTTP options (no CORS, 60 s timeout).
+pub fn app(state: Arc<AppState>) -> axum::Router {
+    routes::router(state, &HttpOptions::default())
+}
+
+/// Serves [`app`]`(state)` on `listener` until `shutdown` resolves, then finishes the
+/// requests in flight (graceful shutdown).
+pub async fn run(
+    listener: tokio::net::TcpListener,
+    state: Arc<AppState>,
+    shutdown: impl Future<Output = ()> + Send + 'static,
+) -> std::io::Result<()> {
+    serve_router(listener, app(state), shutdown).await
+}
+
+/// Serves any router built by [`routes::router`] on `listener` until `shutdown` resolves.
+pub async fn serve_router(
+    listener: tokio::net::TcpListener,
+    router: axum::Router,
+    shutdown: impl Future<Output = ()> + Send + 'static,
+) -> std::io::Result<()> {
+    axum::serve(listener, router)
+        .with_graceful_shutdown(shutdown)
+        .await
+}

@@ -51,6 +51,10 @@ pub struct ServeArgs {
     /// Address to listen on (default 127.0.0.1:8080).
     #[arg(long)]
     pub addr: Option<String>,
+    /// TOML config file (keys: addr, db, data, token, cors_origins, log_format,
+    /// request_timeout_secs, cache_max_age_secs); environment variables and flags override it.
+    #[arg(long)]
+    pub config: Option<PathBuf>,
 }
 
 /// Arguments of the per-gauge pipeline commands.
@@ -154,6 +158,7 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
 }
 
 /// Prints a value as pretty JSON on stdout.
+#[allow(dead_code, reason = "used by the pipeline commands as they land")]
 pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
     let text = serde_json::to_string_pretty(value)?;
     println!("{text}");

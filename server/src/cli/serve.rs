@@ -1,5 +1,144 @@
-//! `tidetally serve` (under construction).
+//! `tidetally serve`: reads the configuration once, sets up logging, opens the store (seeding
+//! an empty one from the data folder), binds, loads the catalog in the background and serves
+//! until Ctrl-C or SIGTERM.
 
-pub(super) fn run(_args: super::ServeArgs) -> anyhow::Result<()> {
-    anyhow::bail!("`serve` is not built yet")
+use std::sync::Arc;
+
+use anyhow::Context;
+use tracing_subscriber::EnvFilter;
+
+use crate::config::{RawServeConfig, ServeConfig};
+use crate::routes::{self, HttpOptions};
+use crate::state::{self, AppState};
+use crate::store::{self, Store};
+
+pub(super) fn run(args: super::ServeArgs) -> anyhow::Result<()> {
+    let config = resolve(&args)?;
+    init_tracing(config.json_logs);
+    let runtime = tokio::runtime::Builder::new_multi_thread()
+        .enable_all()
+        .build()
+        .context("starting the async runtime")?;
+    runtime.block_on(serve(config))
+}
+
+/// Flags over environment over config file over defaults, validated in one place.
+fn resolve(args: &super::ServeArgs) -> anyhow::Result<ServeConfig> {
+    let file = match &args.config {
+        Some(path) => RawServeConfig::from_file(path)?,
+        None => RawServeConfig::default(),
+    };
+    let env = RawServeConfig::from_env(|key| std::env::var(key).ok());
+    let flags = RawServeConfig {
+        addr: args.addr.clone(),
+        db: args.db.clone(),
+        data: args.data.clone(),
+        ..Default::default()
+    };
+    Ok(file.overridden_by(env).overridden_by(flags).validate()?)
+}
+
+fn init_tracing(json: bool) {
+    let filter = EnvFilter::try_from_default_env().unwrap_or_else(|_| EnvFilter::new("info"));
+    let builder = tracing_subscriber::fmt()
+        .with_env_filter(filter)
+        .with_writer(std::io::stderr);
+    // A second init (tests running several servers in one process) keeps the first.
+    let _ = if json {
+        builder.json().try_init()
+    } else {
+        builder.try_init()
+    };
+}
+
+async fn serve(config: ServeConfig) -> anyhow::Result<()> {
+    let store = open_and_seed(&config).await?;
+    let state = AppState::new(store, config.token.clone(), config.cache_max_age);
+    let options = HttpOptions {
+        request_timeout: config.request_timeout,
+        cors_origins: config.cors_origins.clone(),
+    };
+    let listener = tokio::net::TcpListener::bind(config.addr)
+        .await
+        .with_context(|| format!("binding {}", config.addr))?;
+    let local = listener.local_addr().context("reading the bound address")?;
+    // One line of JSON, so scripts that bind port 0 can read the address.
+    println!(
+        "{}",
+        serde_json::json!({
+            "listening": local.to_string(),
+            "db": config.db.display().to_string(),
+            "writes": if config.token.is_some() { "enabled" } else { "disabled" },
+        })
+    );
+    tracing::info!(addr = %local, db = %config.db.display(), "serving");
+
+    let loader = Arc::clone(&state);
+    tokio::spawn(async move {
+        let loaded = tokio::task::spawn_blocking(move || state::load_catalog(&loader)).await;
+        match loaded {
+            Ok(Ok(n)) => tracing::info!(gauges = n, "catalog loaded"),
+            Ok(Err(err)) => tracing::error!(error = %err, "catalog load failed"),
+            Err(err) => tracing::error!(error = %err, "catalog load task lost"),
+        }
+    });
+    crate::serve_router(listener, routes::router(state, &options), shutdown_signal())
+        .await
+        .context("serving")?;
+    tracing::info!("stopped");
+    Ok(())
+}
+
+/// Opens the store; an empty store is seeded from the data folder. A missing folder is an
+/// error when it was asked for and a warning for the default.
+async fn open_and_seed(config: &ServeConfig) -> anyhow::Result<Store> {
+    let config = config.clone();
+    tokio::task::spawn_blocking(move || -> anyhow::Result<Store> {
+        let store = Store::open(&config.db)
+            .with_context(|| format!("opening the store {}", config.db.display()))?;
+        let empty = store.call_blocking(|c| Ok(store::list_gauges(c)?.is_empty()))?;
+        if empty {
+            if config.data.is_dir() {
+                let n = store
+                    .call_blocking(|c| Ok(state::seed_from_dir(c, &config.data)))?
+                    .with_context(|| format!("loading gauges from {}", config.data.display()))?;
+                tracing::info!(gauges = n, dir = %config.data.display(), "store seeded");
+            } else if config.data_explicit {
+                anyhow::bail!("data folder {} does not exist", config.data.display());
+            } else {
+                tracing::warn!(dir = %config.data.display(), "no demo data folder; starting with an empty store");
+            }
+        }
+        Ok(store)
+    })
+    .await
+    .context("store task")?
+}
+
+async fn shutdown_signal() {
+    let ctrl_c = async {
+        if let Err(err) = tokio::signal::ctrl_c().await {
+            tracing::error!(error = %err, "cannot listen for Ctrl-C");
+            std::future::pending::<()>().await;
+        }
+    };
+    #[cfg(unix)]
+    let terminate = async {
+        match tokio::signal::unix::signal(tokio::signal::unix::SignalKind::terminate()) {
+            Ok(mut signal) => {
+                signal.recv().await;
+            }
+            Err(err) => {
+                tracing::error!(error = %err, "cannot listen for SIGTERM");
+                std::future::pending::<()>().await;
+            }
+        }
+    };
+    #[cfg(not(unix))]
+    let terminate = std::future::pending::<()>();
+    tokio::select! {
+        () = ctrl_c => {},
+        () = terminate => {},
+    }
+    tracing::info!("shutting down");
 }

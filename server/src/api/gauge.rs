@@ -1,0 +1,172 @@
+//! Gauges, the gauge list, the GeoJSON feature collection and the season history.
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+/// One gauge as the API shows it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Gauge {
+    /// Identifier: lowercase letters, digits and `-`.
+    pub id: String,
+    /// Human name.
+    pub name: String,
+    /// Degrees north (WGS 84).
+    pub latitude: f64,
+    /// Degrees east (WGS 84).
+    pub longitude: f64,
+    /// The datum levels and the threshold are relative to.
+    pub datum: String,
+    /// Minor flood threshold, metres above `datum`.
+    pub flood_threshold_m: f64,
+    /// Local standard time of the gauge, e.g. `-05:00`.
+    pub utc_offset: String,
+    /// Season names defined for this gauge, e.g. `["DJF", "MAM", "JJA", "SON"]`.
+    pub seasons: Vec<String>,
+    /// The stored water-level record, when one has been uploaded.
+    pub record: Option<RecordSpan>,
+    /// Whether a fitted model is serving outlooks for this gauge.
+    pub model_ready: bool,
+    /// Why no model is serving, when `model_ready` is false.
+    pub model_status: Option<String>,
+}
+
+/// The span of a stored water-level record.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RecordSpan {
+    /// First reading time (ISO 8601, as uploaded).
+    pub first: String,
+    /// Last reading time (ISO 8601, as uploaded).
+    pub last: String,
+    /// Number of data rows (including rows with a missing level).
+    pub readings: u64,
+    /// When the record was uploaded (RFC 3339, UTC).
+    pub uploaded_at: String,
+}
+
+/// `GET /api/v1/gauges`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GaugeList {
+    /// All gauges, ordered by id.
+    pub gauges: Vec<Gauge>,
+}
+
+/// `GET /api/v1/gauges.geojson`: an RFC 7946 FeatureCollection of gauge points.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FeatureCollection {
+    /// Always `FeatureCollection`.
+    #[serde(rename = "type")]
+    pub kind: String,
+    /// One feature per gauge.
+    pub features: Vec<Feature>,
+}
+
+/// One gauge as a GeoJSON Feature.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Feature {
+    /// Always `Feature`.
+    #[serde(rename = "type")]
+    pub kind: String,
+    /// The gauge id.
+    pub id: String,
+    /// The gauge position.
+    pub geometry: Point,
+    /// Gauge attributes.
+    pub properties: GaugeProperties,
+}
+
+/// A GeoJSON Point; `coordinates` are `[longitude, latitude]` (RFC 7946 section 3.1.1).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Point {
+    /// Always `Point`.
+    #[serde(rename = "type")]
+    pub kind: String,
+    /// `[longitude, latitude]` in degrees.
+    pub coordinates: [f64; 2],
+}
+
+/// The properties of a gauge feature.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GaugeProperties {
+    /// The gauge id.
+    pub id: String,
+    /// Human name.
+    pub name: String,
+    /// Datum of the threshold.
+    pub datum: String,
+    /// Minor flood threshold, metres above `datum`.
+    pub flood_threshold_m: f64,
+    /// Whether outlooks are being served.
+    pub model_ready: bool,
+    /// Path of the gauge's resource in this API.
+    pub href: String,
+}
+
+impl FeatureCollection {
+    /// The collection of the given gauges, in order.
+    pub fn of(gauges: &[Gauge]) -> Self {
+        Self {
+            kind: "FeatureCollection".into(),
+            features: gauges.iter().map(Feature::of).collect(),
+        }
+    }
+}
+
+impl Feature {
+    /// A gauge as a point feature, `[lon, lat]` order.
+    pub fn of(gauge: &Gauge) -> Self {
+        Self {
+            kind: "Feature".into(),
+            id: gauge.id.clone(),
+            geometry: Point {
+                kind: "Point".into(),
+                coordinates: [gauge.longitude, gauge.latitude],
+            },
+            properties: GaugeProperties {
+                id: gauge.id.clone(),
+                name: gauge.name.clone(),
+                datum: gauge.datum.clone(),
+                flood_threshold_m: gauge.flood_threshold_m,
+                model_ready: gauge.model_ready,
+                href: format!("/api/v1/gauges/{}", gauge.id),
+            },
+        }
+    }
+}
+
+/// `GET /api/v1/gauges/{id}/seasons`: the gauge's season table.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SeasonHistory {
+    /// The gauge id.
+    pub gauge: String,
+    /// Datum of the threshold.
+    pub datum: String,
+    /// Minor flood threshold, metres above `datum`.
+    pub flood_threshold_m: f64,
+    /// One row per season, oldest first.
+    pub seasons: Vec<SeasonRow>,
+}
+
+/// One season of the season table.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SeasonRow {
+    /// Label, e.g. `2026-DJF`.
+    pub season: String,
+    /// First calendar day (`YYYY-MM-DD`).
+    pub first_day: String,
+    /// Last calendar day (`YYYY-MM-DD`).
+    pub last_day: String,
+    /// Calendar days in the season.
+    pub calendar_days: u32,
+    /// Days with enough readings to count (the exposure).
+    pub observed_days: u32,
+    /// Observed days whose highest level reached the threshold.
+    pub flood_days: u32,
+    /// `observed_days / calendar_days`.
+    pub completeness: f64,
+    /// Whether the season is complete enough to enter the fit.
+    pub used_in_fit: bool,
+    /// Seasonal predictor values by name (e.g. `enso`, `mjo`, `wind`, `sea_level`, `tide`);
+    /// a missing value is absent.
+    pub predictors: BTreeMap<String, f64>,
+}

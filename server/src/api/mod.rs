@@ -1,0 +1,23 @@
+//! The JSON schema of the HTTP API: wire types only, kept apart from the model's types and
+//! filled by explicit conversions, so the model can change without breaking dashboards.
+//!
+//! Every type here is plain data that serializes to the shapes documented in DEVELOPERS.md
+//! ("HTTP API"); field names are part of the stable interface.
+
+mod gauge;
+mod outlook;
+mod problem;
+mod skill;
+mod upload;
+
+pub use gauge::{
+    Feature, FeatureCollection, Gauge, GaugeList, GaugeProperties, Point, RecordSpan,
+    SeasonHistory, SeasonRow,
+};
+pub use outlook::{
+    DriverUse, Exceedance, IssuedOutlook, IssuedOutlookList, LastSeason, Outlook, OutlookSet,
+    SeasonVerification, TercileReference, Terciles, Unavailable, exceedance_from_pmf,
+};
+pub use problem::Problem;
+pub use skill::{Hindcast, HindcastCase, ScoreRow, Skill, Verdict};
+pub use upload::{EnsoForecast, EnsoForecastModel, EnsoProbabilities, UploadReceipt};

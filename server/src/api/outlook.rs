@@ -1,0 +1,186 @@
+//! Outlooks: one gauge's count distribution for a season, all gauges' outlooks, and the
+//! record of issued outlooks.
+
+use serde::{Deserialize, Serialize};
+
+use super::Skill;
+
+/// `GET /api/v1/gauges/{id}/outlook?season=LABEL`: the predictive distribution of a season's
+/// minor flood days at one gauge.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Outlook {
+    /// The gauge id.
+    pub gauge: String,
+    /// Season label, e.g. `2026-DJF`.
+    pub season: String,
+    /// Calendar days in the season (the largest possible count).
+    pub season_days: u32,
+    /// Probability of each count of flood days; index = days, sums to 1.
+    pub pmf: Vec<f64>,
+    /// Mean number of flood days.
+    pub mean: f64,
+    /// Median number of flood days.
+    pub median: u32,
+    /// 10th percentile.
+    pub p10: u32,
+    /// 90th percentile.
+    pub p90: u32,
+    /// `P(N >= days)` for each requested `days`.
+    pub exceedance: Vec<Exceedance>,
+    /// Tercile probabilities against the two references: the 1991-2020 climatology and the
+    /// trend-only expectation.
+    pub terciles: Vec<Terciles>,
+    /// Mean flood days of the season in the 1991-2020 climatology (rate scaled to the full
+    /// season).
+    pub climatological_mean: f64,
+    /// The most recent observed season of the same name, if any.
+    pub last_season_observed: Option<LastSeason>,
+    /// The drivers the model used, with their values for this season.
+    pub drivers: Vec<DriverUse>,
+    /// Out-of-sample skill of the model at this gauge.
+    pub skill: Skill,
+    /// Plain-language cautions; never empty.
+    pub cautions: Vec<String>,
+    /// When the outlook was issued (RFC 3339, UTC).
+    pub issued_at: String,
+    /// Version of the fitted model that made it.
+    pub model_version: String,
+}
+
+/// One exceedance probability.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct Exceedance {
+    /// Threshold count of days `k`.
+    pub days: u32,
+    /// `P(N >= k)`.
+    pub probability: f64,
+}
+
+/// Which reference the terciles are taken from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub enum TercileReference {
+    /// The WMO standard normal period.
+    #[serde(rename = "1991-2020 climatology")]
+    Climatology1991To2020,
+    /// The expectation of the trend-only model for this season.
+    #[serde(rename = "trend-only")]
+    TrendOnly,
+}
+
+/// Probabilities of the below / near / above normal categories.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Terciles {
+    /// The reference the category edges come from.
+    pub reference: TercileReference,
+    /// Category edges `[e1, e2]` in days: below is `N < e1`, near `e1 <= N < e2`, above
+    /// `N >= e2`.
+    pub edges: [u32; 2],
+    /// `P(N < e1)`.
+    pub below: f64,
+    /// `P(e1 <= N < e2)`.
+    pub near: f64,
+    /// `P(N >= e2)`.
+    pub above: f64,
+}
+
+/// The last observed season of the same name.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct LastSeason {
+    /// Season label.
+    pub season: String,
+    /// Observed flood days.
+    pub flood_days: u32,
+    /// Observed days (exposure).
+    pub observed_days: u32,
+}
+
+/// One driver used in an outlook.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct DriverUse {
+    /// Predictor name, e.g. `enso`.
+    pub name: String,
+    /// The value used for this season (the mean over scenarios when it is forecast).
+    pub value: f64,
+    /// Unit of `value`, e.g. `degC`, `days`, `m/s`, `m`.
+    pub unit: String,
+    /// Multiplicative effect on the flood-day rate per unit of the predictor, `exp(beta)`.
+    pub rate_ratio: f64,
+    /// 95% confidence interval of `rate_ratio`.
+    pub rate_ratio_ci: [f64; 2],
+}
+
+/// `GET /api/v1/outlooks?season=LABEL`: every gauge's outlook for one season.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct OutlookSet {
+    /// Season label.
+    pub season: String,
+    /// Outlooks of the gauges that have one, ordered by gauge id.
+    pub outlooks: Vec<Outlook>,
+    /// Gauges without an outlook for this season, and why.
+    pub unavailable: Vec<Unavailable>,
+}
+
+/// A gauge left out of an [`OutlookSet`].
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Unavailable {
+    /// The gauge id.
+    pub gauge: String,
+    /// Why, in plain words.
+    pub reason: String,
+}
+
+/// `GET /api/v1/outlooks/issued`: outlooks as they were served, for later verification.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct IssuedOutlookList {
+    /// Issued outlooks, newest first.
+    pub issued: Vec<IssuedOutlook>,
+}
+
+/// One outlook as it was issued.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct IssuedOutlook {
+    /// Store identifier.
+    pub id: i64,
+    /// The gauge id.
+    pub gauge: String,
+    /// Season label.
+    pub season: String,
+    /// Version of the model that made it.
+    pub model_version: String,
+    /// Issue time (RFC 3339, UTC).
+    pub issued_at: String,
+    /// The driver values the outlook was made from, by name.
+    pub driver_inputs: serde_json::Value,
+    /// The outlook as served.
+    pub outlook: Outlook,
+    /// Scores against what happened, once the season's data is in.
+    pub verification: Option<SeasonVerification>,
+}
+
+/// How an issued outlook fared.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SeasonVerification {
+    /// Observed flood days.
+    pub observed: u32,
+    /// Observed days (exposure).
+    pub observed_days: u32,
+    /// Continuous ranked probability score of the outlook's pmf.
+    pub crps: f64,
+    /// `-ln p(observed)`.
+    pub log_score: f64,
+    /// Probability the outlook gave to the observed tercile category (climatology reference).
+    pub observed_category_probability: f64,
+}
+
+/// `P(N >= k)` for each `k` from a pmf: `1 - sum_{j < k} pmf[j]`, clamped to `[0, 1]`.
+pub fn exceedance_from_pmf(pmf: &[f64], days: &[u32]) -> Vec<Exceedance> {
+    days.iter()
+        .map(|&k| {
+            let below: f64 = pmf.iter().take(k as usize).sum();
+            Exceedance {
+                days: k,
+                probability: (1.0 - below).clamp(0.0, 1.0),
+            }
+        })
+        .collect()
+}

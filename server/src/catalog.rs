@@ -1,0 +1,138 @@
+//! The catalog: what the service is serving for each gauge, prepared ahead so a read only
+//! clones an `Arc`. A refit builds a new entry off the runtime and swaps it in whole; readers
+//! never see half an update, and a failed refit leaves the old entry serving.
+
+use std::collections::BTreeMap;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::{Arc, RwLock};
+
+use axum::body::Bytes;
+
+use crate::api;
+use crate::pipeline::{GaugeResults, PipelineError};
+use crate::upload::GaugeMeta;
+
+/// A response body serialized once, with its strong ETag.
+#[derive(Debug, Clone)]
+pub struct Prepared<T> {
+    /// The value.
+    pub value: T,
+    /// Its JSON bytes.
+    pub body: Bytes,
+    /// Its ETag (quoted).
+    pub etag: String,
+}
+
+impl<T: serde::Serialize> Prepared<T> {
+    /// Serializes `value` once.
+    pub fn new(value: T) -> Self {
+        let body = Bytes::from(serde_json::to_vec(&value).expect("wire types always serialize"));
+        let etag = crate::middleware::etag_of(&body);
+        Self { value, body, etag }
+    }
+}
+
+/// A fitted model as served.
+#[derive(Debug)]
+pub struct ServedModel {
+    /// The results.
+    pub results: GaugeResults,
+    /// The hindcast, prepared.
+    pub hindcast: Prepared<api::Hindcast>,
+    /// Each outlook with the gauge's default exceedance days, prepared, by season label.
+    pub outlooks: BTreeMap<String, Prepared<api::Outlook>>,
+}
+
+impl ServedModel {
+    /// Prepares results for serving.
+    pub fn new(results: GaugeResults) -> Self {
+        let hindcast = Prepared::new(results.hindcast.clone());
+        let outlooks = results
+            .outlooks
+            .iter()
+            .map(|(season, outlook)| (season.clone(), Prepared::new(outlook.clone())))
+            .collect();
+        Self {
+            results,
+            hindcast,
+            outlooks,
+        }
+    }
+}
+
+/// One gauge as served.
+#[derive(Debug)]
+pub struct GaugeEntry {
+    /// The checked description.
+    pub meta: GaugeMeta,
+    /// The stored water-level record, if any.
+    pub record: Option<api::RecordSpan>,
+    /// The season table, or why there is none.
+    pub history: Result<Arc<Prepared<api::SeasonHistory>>, PipelineError>,
+    /// The fitted model, or why there is none.
+    pub model: Result<Arc<ServedModel>, PipelineError>,
+}
+
+impl GaugeEntry {
+    /// The gauge's wire form.
+    pub fn to_wire(&self) -> api::Gauge {
+        api::Gauge {
+            id: self.meta.id.clone(),
+            name: self.meta.name.clone(),
+            latitude: self.meta.latitude,
+            longitude: self.meta.longitude,
+            datum: self.meta.datum.clone(),
+            flood_threshold_m: self.meta.flood_threshold_m,
+            utc_offset: self.meta.utc_offset.clone(),
+            seasons: self
+                .meta
+                .seasons
+                .iter()
+                .map(|s| s.name().to_owned())
+                .collect(),
+            record: self.record.clone(),
+            model_ready: self.model.is_ok(),
+            model_status: self.model.as_ref().err().map(ToString::to_string),
+        }
+    }
+}
+
+/// All gauges being served.
+#[derive(Debug, Default)]
+pub struct Catalog {
+    entries: RwLock<BTreeMap<String, Arc<GaugeEntry>>>,
+    loaded: AtomicBool,
+}
+
+impl Catalog {
+    /// One gauge.
+    pub fn get(&self, id: &str) -> Option<Arc<GaugeEntry>> {
+        self.read().get(id).cloned()
+    }
+
+    /// All gauges, ordered by id.
+    pub fn list(&self) -> Vec<Arc<GaugeEntry>> {
+        self.read().values().cloned().collect()
+    }
+
+    /// Puts an entry in place of the gauge's previous one.
+    pub fn swap_in(&self, entry: GaugeEntry) {
+        let mut map = self.entries.write().unwrap_or_else(|p| p.into_inner());
+        map.insert(entry.meta.id.clone(), Arc::new(entry));
+    }
+
+    /// Marks the startup load as finished.
+    pub fn mark_loaded(&self) {
+        self.loaded.store(true, Ordering::Release);
+    }
+
+    /// Whether the startup load has finished.
+    pub fn is_loaded(&self) -> bool {
+        self.loaded.load(Ordering::Acquire)
+    }
+
+    fn read(&self) -> std::sync::RwLockReadGuard<'_, BTreeMap<String, Arc<GaugeEntry>>> {
+        // A poisoned lock still holds a whole map: entries are only ever swapped in whole.
+        self.entries.read().unwrap_or_else(|p| p.into_inner())
+    }
+}

@@ -1,0 +1,156 @@
+//! The one error type of the HTTP edge. Every failure becomes an RFC 9457
+//! `application/problem+json` response, logged once, with no internals in the body.
+
+use axum::http::{HeaderValue, StatusCode, header};
+use axum::response::{IntoResponse, Response};
+
+use crate::api::Problem;
+use crate::pipeline::PipelineError;
+use crate::store::StoreError;
+use crate::upload::UploadError;
+
+/// Media type of problem responses.
+pub const PROBLEM_JSON: &str = "application/problem+json";
+
+/// Everything a request can fail with.
+#[derive(Debug, thiserror::Error)]
+pub enum AppError {
+    /// No route matches the request path.
+    #[error("no route matches {0}")]
+    UnknownPath(String),
+    /// A named resource does not exist.
+    #[error("{0}")]
+    NotFound(String),
+    /// The request is malformed (bad query value, bad body).
+    #[error("{0}")]
+    BadRequest(String),
+    /// An upload failed validation.
+    #[error(transparent)]
+    Upload(#[from] UploadError),
+    /// A write without a valid bearer token.
+    #[error("this write needs an Authorization: Bearer token")]
+    Unauthorized,
+    /// Writes are disabled because no token is configured.
+    #[error("writes are disabled: the service has no write token configured")]
+    WritesDisabled,
+    /// The body is larger than this endpoint accepts.
+    #[error("{0}")]
+    PayloadTooLarge(String),
+    /// The body's media type is not accepted here.
+    #[error("{0}")]
+    UnsupportedMediaType(String),
+    /// A pipeline step failed or is not available.
+    #[error(transparent)]
+    Pipeline(#[from] PipelineError),
+    /// The service is still loading.
+    #[error("the service is still loading its store and models")]
+    NotReady,
+    /// The store failed. Logged in full; the client sees a generic message.
+    #[error("store: {0}")]
+    Store(#[from] StoreError),
+    /// A bug or a lost background task. Logged in full; the client sees a generic message.
+    #[error("internal: {0}")]
+    Internal(String),
+}
+
+impl AppError {
+    /// The HTTP status.
+    pub fn status(&self) -> StatusCode {
+        match self {
+            AppError::UnknownPath(_) | AppError::NotFound(_) => StatusCode::NOT_FOUND,
+            AppError::BadRequest(_) => StatusCode::BAD_REQUEST,
+            AppError::Upload(UploadError::TooLarge { .. }) => StatusCode::PAYLOAD_TOO_LARGE,
+            AppError::Upload(_) => StatusCode::UNPROCESSABLE_ENTITY,
+            AppError::Unauthorized => StatusCode::UNAUTHORIZED,
+            AppError::WritesDisabled => StatusCode::FORBIDDEN,
+            AppError::PayloadTooLarge(_) => StatusCode::PAYLOAD_TOO_LARGE,
+            AppError::UnsupportedMediaType(_) => StatusCode::UNSUPPORTED_MEDIA_TYPE,
+            AppError::Pipeline(err) => match err {
+                PipelineError::NotAvailable(_) => StatusCode::SERVICE_UNAVAILABLE,
+                PipelineError::MissingInput(_) | PipelineError::Invalid(_) => {
+                    StatusCode::UNPROCESSABLE_ENTITY
+                }
+                PipelineError::SeasonNotServed { .. } => StatusCode::NOT_FOUND,
+            },
+            AppError::NotReady => StatusCode::SERVICE_UNAVAILABLE,
+            AppError::Store(_) | AppError::Internal(_) => StatusCode::INTERNAL_SERVER_ERROR,
+        }
+    }
+
+    /// The problem type slug, appended to `/problems/`.
+    fn slug(&self) -> &'static str {
+        match self {
+            AppError::UnknownPath(_) => "unknown-path",
+            AppError::NotFound(_) => "not-found",
+            AppError::BadRequest(_) => "bad-request",
+            AppError::Upload(UploadError::TooLarge { .. }) => "payload-too-large",
+            AppError::Upload(_) => "invalid-upload",
+            AppError::Unauthorized => "unauthorized",
+            AppError::WritesDisabled => "writes-disabled",
+            AppError::PayloadTooLarge(_) => "payload-too-large",
+            AppError::UnsupportedMediaType(_) => "unsupported-media-type",
+            AppError::Pipeline(PipelineError::NotAvailable(_)) => "not-available",
+            AppError::Pipeline(PipelineError::SeasonNotServed { .. }) => "not-found",
+            AppError::Pipeline(_) => "pipeline-failed",
+            AppError::NotReady => "not-ready",
+            AppError::Store(_) | AppError::Internal(_) => "internal",
+        }
+    }
+
+    /// The problem body; `instance` is filled from the request path by the
+    /// [`crate::middleware::problem_shape`] layer.
+    pub fn problem(&self) -> Problem {
+        let status = self.status();
+        let detail = match self {
+            AppError::Store(_) | AppError::Internal(_) => {
+                "the service failed to answer this request; the error is in its log".to_owned()
+            }
+            other => other.to_string(),
+        };
+        Problem {
+            kind: format!("/problems/{}", self.slug()),
+            title: status.canonical_reason().unwrap_or("Error").to_owned(),
+            status: status.as_u16(),
+            detail,
+            instance: String::new(),
+        }
+    }
+}
+
+impl IntoResponse for AppError {
+    fn into_response(self) -> Response {
+        let problem = self.problem();
+        if problem.status >= 500 {
+            tracing::error!(status = problem.status, error = %self, "request failed");
+        } else {
+            tracing::info!(status = problem.status, error = %self, "request refused");
+        }
+        let mut response = problem_response(problem);
+        if matches!(self, AppError::Unauthorized) {
+            response.headers_mut().insert(
+                header::WWW_AUTHENTICATE,
+                HeaderValue::from_static("Bearer realm=\"tidetally\""),
+            );
+        }
+        response
+    }
+}
+
+/// A problem as a response, with the problem kept as an extension so later layers can fill
+/// `instance` without parsing the body.
+pub fn problem_response(problem: Problem) -> Response {
+    let status = StatusCode::from_u16(problem.status).unwrap_or(StatusCode::INTERNAL_SERVER_ERROR);
+    let body = serde_json::to_vec(&problem).unwrap_or_default();
+    let mut response = (status, body).into_response();
+    response
+        .headers_mut()
+        .insert(header::CONTENT_TYPE, HeaderValue::from_static(PROBLEM_JSON));
+    response.extensions_mut().insert(problem);
+    response
+}
+
+impl From<tokio::task::JoinError> for AppError {
+    fn from(err: tokio::task::JoinError) -> Self {
+        AppError::Internal(format!("background task: {err}"))
+    }
+}

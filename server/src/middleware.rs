@@ -1,0 +1,206 @@
+//! Layers around the routes: strong ETags with `304 Not Modified`, cache headers, problem
+//! bodies for every error (filling `instance`), and the bearer-token gate on writes.
+
+use std::sync::Arc;
+
+use axum::body::{Body, Bytes};
+use axum::extract::{Request, State};
+use axum::http::{HeaderMap, HeaderValue, Method, StatusCode, header};
+use axum::middleware::Next;
+use axum::response::{IntoResponse, Response};
+
+use crate::api::Problem;
+use crate::error::{AppError, problem_response};
+use crate::state::AppState;
+
+/// The largest response body the ETag layer buffers to hash; bigger ones pass unhashed.
+const MAX_HASHED_BODY: usize = 64 << 20;
+
+/// 64-bit FNV-1a of `bytes` (Fowler, Noll and Vo's published offset basis and prime).
+pub fn fnv1a64(bytes: &[u8]) -> u64 {
+    const OFFSET_BASIS: u64 = 0xcbf2_9ce4_8422_2325;
+    const PRIME: u64 = 0x0000_0100_0000_01b3;
+    bytes.iter().fold(OFFSET_BASIS, |hash, &b| {
+        (hash ^ u64::from(b)).wrapping_mul(PRIME)
+    })
+}
+
+/// A strong ETag for a body: the quoted FNV-1a hash and the length.
+pub fn etag_of(bytes: &[u8]) -> String {
+    format!("\"{:016x}-{:x}\"", fnv1a64(bytes), bytes.len())
+}
+
+/// Whether an `If-None-Match` header matches `etag` (weak comparison, RFC 9110 section
+/// 13.1.2: `W/` prefixes are ignored, `*` matches anything).
+pub fn if_none_match_hits(headers: &HeaderMap, etag: &str) -> bool {
+    let bare = |tag: &str| tag.trim().trim_start_matches("W/").to_owned();
+    let ours = bare(etag);
+    headers
+        .get_all(header::IF_NONE_MATCH)
+        .iter()
+        .filter_map(|v| v.to_str().ok())
+        .flat_map(|v| v.split(','))
+        .any(|tag| tag.trim() == "*" || bare(tag) == ours)
+}
+
+/// On successful GETs: adds an ETag (hashing the body unless the handler set one) and
+/// `Cache-Control`, and answers `304` when `If-None-Match` matches.
+pub async fn etag_and_cache(
+    State(state): State<Arc<AppState>>,
+    request: Request,
+    next: Next,
+) -> Response {
+    let is_read = matches!(*request.method(), Method::GET | Method::HEAD);
+    let conditional = request.headers().clone();
+    let response = next.run(request).await;
+    if !is_read || response.status() != StatusCode::OK {
+        return response;
+    }
+    let (mut parts, body) = response.into_parts();
+    let (etag, body) = match parts
+        .headers
+        .get(header::ETAG)
+        .and_then(|v| v.to_str().ok())
+    {
+        Some(tag) => (tag.to_owned(), body),
+        None => match axum::body::to_bytes(body, MAX_HASHED_BODY).await {
+            Ok(bytes) => (etag_of(&bytes), Body::from(bytes)),
+            Err(err) => {
+                tracing::error!(error = %err, "response body could not be read for its ETag");
+                return AppError::Internal("response body unreadable".into()).into_response();
+            }
+        },
+    };
+    if let Ok(value) = HeaderValue::from_str(&etag) {
+        parts.headers.insert(header::ETAG, value);
+    }
+    if !parts.headers.contains_key(header::CACHE_CONTROL) {
+        let value = format!("public, max-age={}", state.cache_max_age.as_secs());
+        if let Ok(value) = HeaderValue::from_str(&value) {
+            parts.headers.insert(header::CACHE_CONTROL, value);
+        }
+    }
+    if if_none_match_hits(&conditional, &etag) {
+        let mut not_modified = Response::new(Body::empty());
+        *not_modified.status_mut() = StatusCode::NOT_MODIFIED;
+        for name in [header::ETAG, header::CACHE_CONTROL, header::VARY] {
+            if let Some(value) = parts.headers.get(&name) {
+                not_modified.headers_mut().insert(name, value.clone());
+            }
+        }
+        return not_modified;
+    }
+    Response::from_parts(parts, body)
+}
+
+/// Makes every error response a problem (RFC 9457) and fills its `instance` with the
+/// request path. Errors made by other layers (timeouts, 405, body limits) get a problem body
+/// named after their status.
+pub async fn problem_shape(request: Request, next: Next) -> Response {
+    let path = request.uri().path().to_owned();
+    let response = next.run(request).await;
+    let status = response.status();
+    if !(status.is_client_error() || status.is_server_error()) {
+        return response;
+    }
+    let mut problem = match response.extensions().get::<Problem>() {
+        Some(problem) => problem.clone(),
+        None => generic_problem(status),
+    };
+    problem.instance = path;
+    let mut shaped = problem_response(problem);
+    for name in [header::WWW_AUTHENTICATE, header::ALLOW, header::RETRY_AFTER] {
+        if let Some(value) = response.headers().get(&name) {
+            shaped.headers_mut().insert(name, value.clone());
+        }
+    }
+    shaped
+}
+
+fn generic_problem(status: StatusCode) -> Problem {
+    let (slug, detail) = match status {
+        StatusCode::METHOD_NOT_ALLOWED => {
+            ("method-not-allowed", "this path does not take that method")
+        }
+        StatusCode::PAYLOAD_TOO_LARGE => (
+            "payload-too-large",
+            "the request body is larger than this endpoint accepts",
+        ),
+        StatusCode::REQUEST_TIMEOUT => {
+            ("timeout", "the request took longer than the service allows")
+        }
+        StatusCode::UNSUPPORTED_MEDIA_TYPE => (
+            "unsupported-media-type",
+            "the request body's media type is not accepted here",
+        ),
+        StatusCode::SERVICE_UNAVAILABLE => (
+            "unavailable",
+            "the service could not answer in time; try again later",
+        ),
+        s if s.is_server_error() => ("internal", "the service failed to answer this request"),
+        _ => ("bad-request", "the request could not be understood"),
+    };
+    Problem {
+        kind: format!("/problems/{slug}"),
+        title: status.canonical_reason().unwrap_or("Error").to_owned(),
+        status: status.as_u16(),
+        detail: detail.to_owned(),
+        instance: String::new(),
+    }
+}
+
+/// Lets a write through only with the configured bearer token.
+pub async fn require_token(
+    State(state): State<Arc<AppState>>,
+    request: Request,
+    next: Next,
+) -> Response {
+    let Some(token) = &state.token else {
+        return AppError::WritesDisabled.into_response();
+    };
+    let authorized = request
+        .headers()
+        .get(header::AUTHORIZATION)
+        .and_then(|v| v.to_str().ok())
+        .is_some_and(|v| token.accepts(v));
+    if !authorized {
+        return AppError::Unauthorized.into_response();
+    }
+    next.run(request).await
+}
+
+/// Bytes of a response body (tests and the bench helper).
+pub async fn body_bytes(response: Response) -> Bytes {
+    axum::body::to_bytes(response.into_body(), usize::MAX)
+        .await
+        .unwrap_or_default()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // FNV-1a 64-bit test vectors from the reference implementation's test suite
+    // (Landon Curt Noll, "FNV hash" test vectors, fnv_test.c): "" -> cbf29ce484222325,
+    // "a" -> af63dc4c8601ec8c, "foobar" -> 85944171f73967e8.
+    #[test]
+    fn fnv1a64_matches_the_published_vectors() {
+        assert_eq!(fnv1a64(b""), 0xcbf2_9ce4_8422_2325);
+        assert_eq!(fnv1a64(b"a"), 0xaf63_dc4c_8601_ec8c);
+        assert_eq!(fnv1a64(b"foobar"), 0x8594_4171_f739_67e8);
+    }
+
+    #[test]
+    fn if_none_match_compares_weakly_over_lists() {
+        let mut headers = HeaderMap::new();
+        headers.insert(
+            header::IF_NONE_MATCH,
+            HeaderValue::from_static("\"x\", W/\"abc-3\""),
+        );
+        assert!(if_none_match_hits(&headers, "\"abc-3\""));
+        assert!(!if_none_match_hits(&headers, "\"abd-3\""));
+        headers.insert(header::IF_NONE_MATCH, HeaderValue::from_static("*"));
+        assert!(if_none_match_hits(&headers, "\"anything\""));
+        assert!(!if_none_match_hits(&HeaderMap::new(), "\"abc-3\""));
+    }
+}

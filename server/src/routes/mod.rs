@@ -1,0 +1,98 @@
+//! The router: every path, its layers, and the fallback for unknown paths.
+
+mod health;
+mod read;
+mod write;
+
+use std::sync::Arc;
+
+use axum::Router;
+use axum::extract::DefaultBodyLimit;
+use axum::http::{StatusCode, Uri};
+use axum::middleware::{from_fn, from_fn_with_state};
+use axum::routing::{get, post, put};
+use tower_http::timeout::TimeoutLayer;
+use tower_http::trace::TraceLayer;
+
+use crate::error::AppError;
+use crate::middleware::{etag_and_cache, problem_shape, require_token};
+use crate::state::AppState;
+
+/// The largest JSON or TOML body.
+pub const MAX_DOCUMENT_BYTES: usize = 1 << 20;
+/// The largest upload body as transferred (gzip allowed).
+pub const MAX_UPLOAD_BYTES: usize = 64 << 20;
+
+/// Layers that depend on configuration outside [`AppState`].
+#[derive(Debug, Clone)]
+pub struct HttpOptions {
+    /// Per-request timeout.
+    pub request_timeout: std::time::Duration,
+    /// Allowed CORS origins (`*` for any); empty adds no CORS headers.
+    pub cors_origins: Vec<String>,
+}
+
+impl Default for HttpOptions {
+    fn default() -> Self {
+        Self {
+            request_timeout: std::time::Duration::from_secs(60),
+            cors_origins: Vec::new(),
+        }
+    }
+}
+
+/// The whole service.
+pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
+    let upload_limit = DefaultBodyLimit::max(MAX_UPLOAD_BYTES);
+    let writes = Router::new()
+        .route("/api/v1/gauges/{id}", put(write::put_gauge))
+        .route(
+            "/api/v1/gauges/{id}/levels",
+            put(write::put_levels).layer(upload_limit),
+        )
+        .route(
+            "/api/v1/drivers/{kind}",
+            put(write::put_driver).layer(upload_limit),
+        )
+        .route(
+            "/api/v1/drivers/wind/{gauge}",
+            put(write::put_wind).layer(upload_limit),
+        )
+        .route("/api/v1/forecasts/enso", put(write::put_enso_forecast))
+        .route("/api/v1/gauges/{id}/refit", post(write::refit))
+        .route_layer(from_fn_with_state(Arc::clone(&state), require_token));
+    let reads = Router::new()
+        .route("/api/v1/openapi.json", get(read::openapi))
+        .route("/api/v1/gauges", get(read::gauges))
+        .route("/api/v1/gauges.geojson", get(read::gauges_geojson))
+        .route("/api/v1/gauges/{id}", get(read::gauge))
+        .route("/api/v1/gauges/{id}/seasons", get(read::seasons))
+        .route("/api/v1/gauges/{id}/outlook", get(read::outlook))
+        .route("/api/v1/gauges/{id}/hindcast", get(read::hindcast))
+        .route("/api/v1/outlooks", get(read::outlooks))
+        .route("/api/v1/outlooks/issued", get(read::issued))
+        .layer(from_fn_with_state(Arc::clone(&state), etag_and_cache));
+    let health = Router::new()
+        .route("/healthz", get(health::healthz))
+        .route("/readyz", get(health::readyz));
+    let mut app = Router::new()
+        .merge(health)
+        .merge(reads)
+        .merge(writes)
+        .fallback(unknown_path)
+        .layer(DefaultBodyLimit::max(MAX_DOCUMENT_BYTES))
+        .layer(TimeoutLayer::with_status_code(
+            StatusCode::SERVICE_UNAVAILABLE,
+            options.request_timeout,
+        ))
+        .layer(from_fn(problem_shape))
+        .with_state(state);
+    if let Some(cors) = crate::cors::layer(&options.cors_origins) {
+        app = app.layer(cors);
+    }
+    app.layer(TraceLayer::new_for_http())
+}
+
+async fn unknown_path(uri: Uri) -> AppError {
+    AppError::UnknownPath(uri.path().to_owned())
+}

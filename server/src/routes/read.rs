@@ -1,0 +1,383 @@
+//! Read endpoints. Prepared bodies are served as cloned `Bytes` with their ETag; nothing
+//! here computes more than a tail sum of a pmf.
+
+use std::sync::Arc;
+
+use axum::Json;
+use axum::body::Bytes;
+use axum::extract::rejection::QueryRejection;
+use axum::extract::{Path, Query, State};
+use axum::http::{HeaderMap, HeaderValue, header};
+use axum::response::{IntoResponse, Response};
+use serde::Deserialize;
+
+use crate::api;
+use crate::catalog::{GaugeEntry, Prepared};
+use crate::error::AppError;
+use crate::pipeline::{self, PipelineError};
+use crate::query;
+use crate::state::AppState;
+use crate::store;
+
+/// Most issued outlooks one request lists.
+const MAX_ISSUED: u32 = 500;
+
+fn gauge_entry(state: &AppState, id: &str) -> Result<Arc<GaugeEntry>, AppError> {
+    state
+        .catalog
+        .get(id)
+        .ok_or_else(|| AppError::NotFound(format!("no gauge named {id:?}")))
+}
+
+fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
+    query
+        .map(|Query(q)| q)
+        .map_err(|err| AppError::BadRequest(format!("bad query string: {}", err.body_text())))
+}
+
+/// A prepared JSON body with its ETag.
+fn prepared<T>(p: &Prepared<T>, content_type: &'static str) -> Response {
+    let mut response = p.body.clone().into_response();
+    let headers = response.headers_mut();
+    headers.insert(header::CONTENT_TYPE, HeaderValue::from_static(content_type));
+    if let Ok(tag) = HeaderValue::from_str(&p.etag) {
+        headers.insert(header::ETAG, tag);
+    }
+    response
+}
+
+/// `GET /api/v1/openapi.json`.
+pub async fn openapi() -> Response {
+    static DOC: std::sync::OnceLock<Bytes> = std::sync::OnceLock::new();
+    let body = DOC.get_or_init(|| Bytes::from(crate::openapi::document().to_string()));
+    ([(header::CONTENT_TYPE, "application/json")], body.clone()).into_response()
+}
+
+/// `GET /api/v1/gauges`.
+pub async fn gauges(State(state): State<Arc<AppState>>) -> Json<api::GaugeList> {
+    Json(api::GaugeList {
+        gauges: state.catalog.list().iter().map(|e| e.to_wire()).collect(),
+    })
+}
+
+/// `GET /api/v1/gauges.geojson`.
+pub async fn gauges_geojson(State(state): State<Arc<AppState>>) -> Response {
+    let gauges: Vec<api::Gauge> = state.catalog.list().iter().map(|e| e.to_wire()).collect();
+    let body = serde_json::to_vec(&api::FeatureCollection::of(&gauges)).unwrap_or_default();
+    ([(header::CONTENT_TYPE, "application/geo+json")], body).into_response()
+}
+
+/// `GET /api/v1/gauges/{id}`.
+pub async fn gauge(
+    State(state): State<Arc<AppState>>,
+    Path(id): Path<String>,
+) -> Result<Json<api::Gauge>, AppError> {
+    Ok(Json(gauge_entry(&state, &id)?.to_wire()))
+}
+
+/// Query of the seasons endpoint.
+#[derive(Debug, Deserialize)]
+pub struct SeasonsQuery {
+    format: Option<String>,
+}
+
+/// `GET /api/v1/gauges/{id}/seasons` (JSON, or CSV by `Accept: text/csv` or `?format=csv`).
+pub async fn seasons(
+    State(state): State<Arc<AppState>>,
+    Path(id): Path<String>,
+    headers: HeaderMap,
+    query: Result<Query<SeasonsQuery>, QueryRejection>,
+) -> Result<Response, AppError> {
+    let query = query_of(query)?;
+    let entry = gauge_entry(&state, &id)?;
+    let wants_csv = match query.format.as_deref() {
+        Some("csv") => true,
+        Some("json") => false,
+        Some(other) => {
+            return Err(AppError::BadRequest(format!(
+                "format {other:?} must be json or csv"
+            )));
+        }
+        None => headers
+            .get(header::ACCEPT)
+            .and_then(|v| v.to_str().ok())
+            .is_some_and(|accept| accept.contains("text/csv")),
+    };
+    let history = entry
+        .history
+        .as_ref()
+        .map_err(|e| AppError::Pipeline(e.clone()))?;
+    let mut response = if wants_csv {
+        let csv = season_csv(&history.value).map_err(|e| AppError::Internal(e.to_string()))?;
+        ([(header::CONTENT_TYPE, "text/csv; charset=utf-8")], csv).into_response()
+    } else {
+        prepared(history, "application/json")
+    };
+    response
+        .headers_mut()
+        .insert(header::VARY, HeaderValue::from_static("accept"));
+    Ok(response)
+}
+
+/// The season table as CSV: fixed columns, then one column per predictor sorted by name.
+fn season_csv(history: &api::SeasonHistory) -> Result<Vec<u8>, csv::Error> {
+    let predictors: std::collections::BTreeSet<&String> = history
+        .seasons
+        .iter()
+        .flat_map(|s| s.predictors.keys())
+        .collect();
+    let mut writer = csv::Writer::from_writer(Vec::new());
+    let mut header = vec![
+        "season",
+        "first_day",
+        "last_day",
+        "calendar_days",
+        "observed_days",
+        "flood_days",
+        "completeness",
+        "used_in_fit",
+    ];
+    header.extend(predictors.iter().map(|p| p.as_str()));
+    writer.write_record(&header)?;
+    for row in &history.seasons {
+        let mut record = vec![
+            row.season.clone(),
+            row.first_day.clone(),
+            row.last_day.clone(),
+            row.calendar_days.to_string(),
+            row.observed_days.to_string(),
+            row.flood_days.to_string(),
+            row.completeness.to_string(),
+            row.used_in_fit.to_string(),
+        ];
+        record.extend(predictors.iter().map(|p| {
+            row.predictors
+                .get(*p)
+                .map(f64::to_string)
+                .unwrap_or_default()
+        }));
+        writer.write_record(&record)?;
+    }
+    writer.into_inner().map_err(|e| e.into_error().into())
+}
+
+/// Query of the outlook endpoint.
+#[derive(Debug, Deserialize)]
+pub struct OutlookQuery {
+    season: Option<String>,
+    k: Option<String>,
+}
+
+/// `GET /api/v1/gauges/{id}/outlook?season=LABEL&k=5,10`.
+pub async fn outlook(
+    State(state): State<Arc<AppState>>,
+    Path(id): Path<String>,
+    query: Result<Query<OutlookQuery>, QueryRejection>,
+) -> Result<Response, AppError> {
+    let query = query_of(query)?;
+    let entry = gauge_entry(&state, &id)?;
+    let model = entry
+        .model
+        .as_ref()
+        .map_err(|e| AppError::Pipeline(e.clone()))?;
+    let label = match &query.season {
+        Some(text) => query::parse_season(text, &entry.meta.seasons)
+            .map_err(AppError::BadRequest)?
+            .label(),
+        None => first_served_season(model.outlooks.keys(), &entry)
+            .ok_or_else(|| AppError::NotFound(format!("gauge {id:?} serves no outlook")))?,
+    };
+    let served = model.outlooks.get(&label).ok_or_else(|| {
+        AppError::Pipeline(PipelineError::SeasonNotServed {
+            gauge: id.clone(),
+            season: label.clone(),
+            served: model
+                .outlooks
+                .keys()
+                .cloned()
+                .collect::<Vec<_>>()
+                .join(", "),
+        })
+    })?;
+    match &query.k {
+        None => Ok(prepared(served, "application/json")),
+        Some(text) => {
+            let days = query::parse_k_list(text, served.value.season_days)
+                .map_err(AppError::BadRequest)?;
+            let mut outlook = served.value.clone();
+            outlook.exceedance = api::exceedance_from_pmf(&outlook.pmf, &days);
+            Ok(Json(outlook).into_response())
+        }
+    }
+}
+
+/// The earliest season (by first day) among served labels.
+fn first_served_season<'a>(
+    labels: impl Iterator<Item = &'a String>,
+    entry: &GaugeEntry,
+) -> Option<String> {
+    labels
+        .filter_map(|l| query::parse_season(l, &entry.meta.seasons).ok())
+        .min_by_key(|s| s.first_day())
+        .map(|s| s.label())
+}
+
+/// `GET /api/v1/gauges/{id}/hindcast`.
+pub async fn hindcast(
+    State(state): State<Arc<AppState>>,
+    Path(id): Path<String>,
+) -> Result<Response, AppError> {
+    let entry = gauge_entry(&state, &id)?;
+    let model = entry
+        .model
+        .as_ref()
+        .map_err(|e| AppError::Pipeline(e.clone()))?;
+    Ok(prepared(&model.hindcast, "application/json"))
+}
+
+/// Query of the all-gauges outlook endpoint.
+#[derive(Debug, Deserialize)]
+pub struct OutlooksQuery {
+    season: Option<String>,
+}
+
+/// `GET /api/v1/outlooks?season=LABEL`.
+pub async fn outlooks(
+    State(state): State<Arc<AppState>>,
+    query: Result<Query<OutlooksQuery>, QueryRejection>,
+) -> Result<Json<api::OutlookSet>, AppError> {
+    let query = query_of(query)?;
+    let text = query.season.ok_or_else(|| {
+        AppError::BadRequest("the season parameter is required, e.g. ?season=2026-DJF".into())
+    })?;
+    let (year, name) = query::parse_label_shape(&text).map_err(AppError::BadRequest)?;
+    let label = format!("{year}-{name}");
+    let mut set = api::OutlookSet {
+        season: label.clone(),
+        outlooks: Vec::new(),
+        unavailable: Vec::new(),
+    };
+    for entry in state.catalog.list() {
+        let gauge = entry.meta.id.clone();
+        let outcome = query::parse_season(&label, &entry.meta.seasons)
+            .map_err(|_| format!("gauge {gauge} does not define season {name}"))
+            .and_then(|_| entry.model.as_ref().map_err(ToString::to_string))
+            .and_then(|model| {
+                model
+                    .outlooks
+                    .get(&label)
+                    .map(|p| p.value.clone())
+                    .ok_or_else(|| format!("no outlook issued for {label}"))
+            });
+        match outcome {
+            Ok(outlook) => set.outlooks.push(outlook),
+            Err(reason) => set.unavailable.push(api::Unavailable { gauge, reason }),
+        }
+    }
+    Ok(Json(set))
+}
+
+/// Query of the issued-outlooks endpoint.
+#[derive(Debug, Deserialize)]
+pub struct IssuedQuery {
+    gauge: Option<String>,
+    season: Option<String>,
+    limit: Option<u32>,
+}
+
+/// `GET /api/v1/outlooks/issued?gauge=ID&season=LABEL&limit=N`.
+pub async fn issued(
+    State(state): State<Arc<AppState>>,
+    query: Result<Query<IssuedQuery>, QueryRejection>,
+) -> Result<Json<api::IssuedOutlookList>, AppError> {
+    let query = query_of(query)?;
+    let season = match query.season {
+        Some(text) => {
+            let (year, name) = query::parse_label_shape(&text).map_err(AppError::BadRequest)?;
+            Some(format!("{year}-{name}"))
+        }
+        None => None,
+    };
+    let filter = store::IssuedFilter {
+        gauge: query.gauge,
+        season,
+        limit: query.limit.unwrap_or(100).clamp(1, MAX_ISSUED),
+    };
+    let records = state
+        .store
+        .call(move |c| store::list_issued(c, &filter))
+        .await?;
+    let mut issued = Vec::with_capacity(records.len());
+    for record in records {
+        let outlook: api::Outlook = serde_json::from_str(&record.outlook_json)
+            .map_err(|e| AppError::Internal(format!("issued outlook {}: {e}", record.id)))?;
+        let driver_inputs = serde_json::from_str(&record.driver_inputs_json)
+            .map_err(|e| AppError::Internal(format!("issued outlook {}: {e}", record.id)))?;
+        let verification = state.catalog.get(&record.gauge_id).and_then(|entry| {
+            let history = entry.history.as_ref().ok()?;
+            let row = history
+                .value
+                .seasons
+                .iter()
+                .find(|r| r.season == record.season)?;
+            pipeline::verify_issued(&outlook, row).ok()
+        });
+        issued.push(api::IssuedOutlook {
+            id: record.id,
+            gauge: record.gauge_id,
+            season: record.season,
+            model_version: record.model_version,
+            issued_at: record.issued_at,
+            driver_inputs,
+            outlook,
+            verification,
+        });
+    }
+    Ok(Json(api::IssuedOutlookList { issued }))
+}
+
+#[cfg(test)]
+mod tests {
+    use std::collections::BTreeMap;
+
+    use super::*;
+
+    fn row(season: &str, predictors: &[(&str, f64)]) -> api::SeasonRow {
+        api::SeasonRow {
+            season: season.into(),
+            first_day: "2020-12-01".into(),
+            last_day: "2021-02-28".into(),
+            calendar_days: 90,
+            observed_days: 88,
+            flood_days: 3,
+            completeness: 88.0 / 90.0,
+            used_in_fit: true,
+            predictors: predictors
+                .iter()
+                .map(|(k, v)| ((*k).to_owned(), *v))
+                .collect::<BTreeMap<_, _>>(),
+        }
+    }
+
+    #[test]
+    fn season_csv_has_one_column_per_predictor_and_blanks_for_missing() {
+        let history = api::SeasonHistory {
+            gauge: "a".into(),
+            datum: "STND".into(),
+            flood_threshold_m: 0.85,
+            seasons: vec![
+                row("2020-DJF", &[("wind", 1.5), ("enso", -0.5)]),
+                row("2021-DJF", &[("enso", 0.25)]),
+            ],
+        };
+        let text = String::from_utf8(season_csv(&history).unwrap()).unwrap();
+        let lines: Vec<&str> = text.lines().collect();
+        assert_eq!(
+            lines[0],
+            "season,first_day,last_day,calendar_days,observed_days,flood_days,completeness,used_in_fit,enso,wind"
+        );
+        assert!(lines[1].starts_with("2020-DJF,2020-12-01,2021-02-28,90,88,3,"));
+        assert!(lines[1].ends_with(",true,-0.5,1.5"), "{}", lines[1]);
+        assert!(lines[2].ends_with(",true,0.25,"), "{}", lines[2]);
+    }
+}

@@ -1,0 +1,166 @@
+//! Checking uploads before anything is stored: transfer gzip, CSV series (water levels and
+//! drivers), gauge TOML and ENSO forecast JSON. Every error names the file, line and field.
+
+mod body;
+mod csv_scan;
+mod forecast;
+mod gauge_toml;
+
+pub use body::{MAX_DECOMPRESSED_BYTES, decode_body};
+pub use csv_scan::{CsvKind, ScanSummary, scan_csv};
+pub use forecast::parse_enso_forecast;
+pub use gauge_toml::{DriverFiles, GaugeMeta, parse_gauge_toml};
+
+/// Why an upload was refused.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum UploadError {
+    /// The body (after gzip) is larger than allowed.
+    #[error("{what}: more than {limit} bytes after decompression")]
+    TooLarge {
+        /// What was uploaded.
+        what: String,
+        /// The limit in bytes.
+        limit: usize,
+    },
+    /// The body starts like gzip but does not decompress.
+    #[error("{what}: gzip stream is corrupt: {message}")]
+    Gzip {
+        /// What was uploaded.
+        what: String,
+        /// The decoder's message.
+        message: String,
+    },
+    /// The body is empty or has no data rows.
+    #[error("{what}: no data rows")]
+    Empty {
+        /// What was uploaded.
+        what: String,
+    },
+    /// The header row is not one of the accepted ones.
+    #[error("{what}: line 1: header {found:?} must be {expected}")]
+    Header {
+        /// What was uploaded.
+        what: String,
+        /// The header found.
+        found: String,
+        /// The accepted headers.
+        expected: String,
+    },
+    /// A bad value in a data row.
+    #[error("{what}: line {line}, field {field}: {message}")]
+    Field {
+        /// What was uploaded.
+        what: String,
+        /// 1-based line number.
+        line: u64,
+        /// The column name.
+        field: String,
+        /// What is wrong.
+        message: String,
+    },
+    /// A row that is not CSV of the right width, or not UTF-8.
+    #[error("{what}: line {line}: {message}")]
+    Row {
+        /// What was uploaded.
+        what: String,
+        /// 1-based line number.
+        line: u64,
+        /// What is wrong.
+        message: String,
+    },
+    /// The same time appears twice.
+    #[error("{what}: line {second_line}, field {field}: time {value} repeats line {first_line}")]
+    Duplicate {
+        /// What was uploaded.
+        what: String,
+        /// The time column name.
+        field: String,
+        /// The repeated value.
+        value: String,
+        /// The first line with it.
+        first_line: u64,
+        /// The line repeating it.
+        second_line: u64,
+    },
+    /// A document (TOML or JSON) that does not parse or fails a check.
+    #[error("{what}: {message}")]
+    Document {
+        /// What was uploaded, e.g. `gauge TOML`.
+        what: String,
+        /// The message, with line and field where known.
+        message: String,
+    },
+}
+
+/// Shared test inputs.
+#[cfg(test)]
+pub(crate) mod tests_support {
+    /// The example of DEVELOPERS.md, "Gauge TOML".
+    pub const EXAMPLE: &str = r#"
+id = "port-alder"
+name = "Port Alder harbour"
+latitude = 44.12
+longitude = -67.31
+datum = "STND"
+flood_threshold_m = 0.85
+utc_offset = "-05:00"
+coast_orientation_deg = 135.0
+
+[levels]
+file = "port-alder-levels.csv.gz"
+units = "m"
+missing_sentinel = -99999.0
+
+[seasons]
+custom = [{ name = "NDJFM", start_month = 11, months = 5 }]
+min_completeness = 0.8
+
+[drivers]
+enso = "../drivers/enso-monthly.csv"
+wind = "port-alder-wind.csv"
+
+[model]
+family = "auto"
+exceed_days = [10, 5, 20]
+"#;
+}
+
+#[cfg(test)]
+mod no_panic {
+    use super::*;
+    use proptest::prelude::*;
+
+    proptest! {
+        #[test]
+        fn csv_checks_never_panic(bytes in proptest::collection::vec(any::<u8>(), 0..400)) {
+            for kind in [CsvKind::Levels, CsvKind::Enso, CsvKind::Rmm, CsvKind::Wind] {
+                let _ = scan_csv(kind, &bytes);
+            }
+            let _ = decode_body("x", &bytes, 1000);
+            let _ = parse_enso_forecast(&bytes);
+        }
+
+        #[test]
+        fn csv_checks_never_panic_on_near_valid_rows(
+            rows in proptest::collection::vec(("[0-9T:Z+-]{0,26}", "[-0-9.eNa]{0,8}"), 0..20)
+        ) {
+            let mut text = String::from("time,level\n");
+            for (time, level) in rows {
+                text.push_str(&format!("{time},{level}\n"));
+            }
+            let _ = scan_csv(CsvKind::Levels, text.as_bytes());
+        }
+
+        #[test]
+        fn gauge_toml_check_never_panics(text in ".{0,300}") {
+            let _ = parse_gauge_toml(&text);
+        }
+
+        #[test]
+        fn gzip_bodies_of_any_content_never_panic(bytes in proptest::collection::vec(any::<u8>(), 0..400)) {
+            let mut gz = vec![0x1f, 0x8b];
+            gz.extend_from_slice(&bytes);
+            let _ = decode_body("x", &gz, 1000);
+        }
+    }
+}
