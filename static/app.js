@@ -79,7 +79,10 @@
     const kx = Math.cos((midLat * Math.PI) / 180);
     const spanX = Math.max(0.05, (Math.max(...lons) - Math.min(...lons)) * kx);
     const spanY = Math.max(0.05, Math.max(...lats) - Math.min(...lats));
-    const W = 640, H = 330, pad = 60;
+    const W = Math.round(Math.max(300, Math.min(720, svg.clientWidth || 640)));
+    const H = Math.round(Math.max(200, Math.min(330, W * 0.52)));
+    const pad = Math.round(Math.max(40, W * 0.1));
+    svg.setAttribute("viewBox", `0 0 ${W} ${H}`);
     const scale = Math.min((W - 2 * pad) / spanX, (H - 2 * pad) / spanY);
     const cx = (Math.min(...lons) + Math.max(...lons)) / 2;
     const px = (lon) => W / 2 + (lon - cx) * kx * scale;
@@ -114,7 +117,7 @@
       const x = px(g.longitude), y = py(g.latitude);
       group.append(mk("circle", { class: "ring", cx: x, cy: y, r: 10 }));
       group.append(mk("circle", { class: "core", cx: x, cy: y, r: 3.5 }));
-      const right = x < W - 130;
+      const right = x < W - 120;
       const label = mk("text", { x: right ? x + 15 : x - 15, y: y + 4, "text-anchor": right ? "start" : "end" });
       label.textContent = g.name;
       group.append(label);
@@ -204,7 +207,8 @@
         figure("near", t.near, percent(t.near)), ` of a usual one (${e1} to ${Math.max(e1, e2 - 1)} days), `,
         figure("above", t.above, percent(t.above)), ` of a high one (${e2} or more).`);
       [["below", "low", t.below], ["near", "usual", t.near], ["above", "high", t.above]].forEach(([cls, word, p]) => {
-        const span = el("span", { class: cls, text: p >= 0.12 ? `${word} ${Math.round(p * 100)}%` : "" });
+        const label = p >= 0.25 ? `${word} ${Math.round(p * 100)}%` : p >= 0.08 ? `${Math.round(p * 100)}%` : "";
+        const span = el("span", { class: cls, text: label });
         span.style.flexBasis = `${(p * 100).toFixed(2)}%`;
         bar.append(span);
       });
@@ -474,6 +478,8 @@
       lastWidth = window.innerWidth;
       clearTimeout(timer);
       timer = setTimeout(() => {
+        drawPositions(state.gauges);
+        if (state.current) markChosen(state.current);
         Object.entries(state.charts).forEach(([name, u]) => {
           const box = $(`chart-${name}`);
           const width = Math.max(260, Math.floor(box.clientWidth));

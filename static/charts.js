@@ -10,7 +10,7 @@
   const KELP = "#0e6b66";
   const BRICK = "#a8431f";
   const BELOW = "#2f6f9f";
-  const NEAR = "#8a8577";
+  const NEAR = "#6b675c";
   const FONT = "12px system-ui, sans-serif";
 
   function size(el) {
@@ -39,8 +39,8 @@
       scales: { x: { time: false }, pmf: { range: (u, lo, hi) => [0, Math.max(0.05, hi * 1.15)] }, cum: { range: [0, 1] } },
       axes: [
         axis({ label: "flood days in the season" }),
-        axis({ scale: "pmf", label: "chance of exactly this many", values: (u, v) => v.map(pct) }),
-        axis({ scale: "cum", side: 1, grid: { show: false }, label: "chance of this many or more", values: (u, v) => v.map(pct) }),
+        axis({ scale: "pmf", label: "chance: exactly", values: (u, v) => v.map(pct) }),
+        axis({ scale: "cum", side: 1, grid: { show: false }, label: "chance: this many or more", values: (u, v) => v.map(pct) }),
       ],
       series: [
         { label: "days" },
@@ -94,7 +94,7 @@
     const obs = [null].concat(points.map((p) => p.observed), [null]);
     const opts = Object.assign(size(el), {
       scales: { x: { time: false, range: [0, 1] }, y: { range: [0, 1] } },
-      axes: [axis({ label: "stated chance of a count at or below the quantile", values: (u, v) => v.map(pct) }),
+      axes: [axis({ label: "stated chance (at or below)", values: (u, v) => v.map(pct) }),
         axis({ label: "how often it happened", values: (u, v) => v.map(pct) })],
       series: [
         { label: "stated", value: (u, v) => pct(v) },

@@ -100,7 +100,11 @@ async fn fixture_when_not_available(request: Request, next: Next) -> Response {
     match fixture_for(&path) {
         Some(body) => {
             FIXTURE_USED.store(true, Ordering::SeqCst);
-            ([(header::CONTENT_TYPE, "application/json")], Body::from(body)).into_response()
+            (
+                [(header::CONTENT_TYPE, "application/json")],
+                Body::from(body),
+            )
+                .into_response()
         }
         None => response,
     }
@@ -137,21 +141,27 @@ fn seed_demo(store: &Store, scratch: &Path) -> usize {
     match seed(&demo.join("gauges")) {
         Ok(n) => n,
         Err(err) if err.to_string().contains("note") || format!("{err:?}").contains("`note`") => {
-            eprintln!("NOTE: the service rejects the demo ENSO forecast's `note` field ({err:?}); seeding a copy without it");
+            eprintln!(
+                "NOTE: the service rejects the demo ENSO forecast's `note` field ({err:?}); seeding a copy without it"
+            );
             let copy = scratch.join("demo");
             for sub in ["gauges", "drivers"] {
                 std::fs::create_dir_all(copy.join(sub)).expect("copy dir");
                 for entry in std::fs::read_dir(demo.join(sub)).expect("demo dir") {
                     let path = entry.expect("entry").path();
-                    std::fs::copy(&path, copy.join(sub).join(path.file_name().expect("a name")))
-                        .expect("copy demo file");
+                    std::fs::copy(
+                        &path,
+                        copy.join(sub).join(path.file_name().expect("a name")),
+                    )
+                    .expect("copy demo file");
                 }
             }
             for entry in std::fs::read_dir(copy.join("drivers")).expect("copied drivers") {
                 let path = entry.expect("entry").path();
                 if path.extension().is_some_and(|x| x == "json") {
-                    let mut doc: Value = serde_json::from_slice(&std::fs::read(&path).expect("read"))
-                        .expect("forecast JSON");
+                    let mut doc: Value =
+                        serde_json::from_slice(&std::fs::read(&path).expect("read"))
+                            .expect("forecast JSON");
                     if let Some(obj) = doc.as_object_mut() {
                         obj.remove("note");
                     }
@@ -300,7 +310,12 @@ fn check_numbers(session: &Session, service: SocketAddr, gauge: &str) -> Value {
         &format!("/api/v1/gauges/{gauge}/outlook"),
         None,
     );
-    assert_eq!(answer.status, 200, "{}", String::from_utf8_lossy(&answer.body));
+    assert_eq!(
+        answer.status,
+        200,
+        "{}",
+        String::from_utf8_lossy(&answer.body)
+    );
     let outlook = answer.json();
     let fields = shown_fields(session);
     let num = |v: &Value| v.as_f64().expect("a number");
@@ -390,9 +405,18 @@ fn check_charts(session: &Session) {
             chart["drawn"].as_u64().unwrap() > 500,
             "{name} is blank: {chart}"
         );
-        assert!(chart["alt"].as_u64().unwrap() > 40, "{name} text alternative: {chart}");
-        assert!(chart["label"].as_u64().unwrap() > 40, "{name} canvas label: {chart}");
-        assert!(chart["rows"].as_u64().unwrap() > 0, "{name} table view: {chart}");
+        assert!(
+            chart["alt"].as_u64().unwrap() > 40,
+            "{name} text alternative: {chart}"
+        );
+        assert!(
+            chart["label"].as_u64().unwrap() > 40,
+            "{name} canvas label: {chart}"
+        );
+        assert!(
+            chart["rows"].as_u64().unwrap() > 0,
+            "{name} table view: {chart}"
+        );
     }
 }
 
@@ -471,7 +495,10 @@ fn check_downloads(session: &Session, service: SocketAddr, outlook: &Value) {
         );
     }
     assert_eq!(got["png"]["type"], "image/png", "PNG export: {got}");
-    assert!(got["png"]["size"].as_u64().unwrap() > 2000, "PNG export: {got}");
+    assert!(
+        got["png"]["size"].as_u64().unwrap() > 2000,
+        "PNG export: {got}"
+    );
 }
 
 /// Every resource came from the page's own origin, and the page carries a CSP of `'self'`.
@@ -486,7 +513,10 @@ fn check_same_origin(session: &Session, service: SocketAddr) {
         "return performance.getEntriesByType('resource').length",
         json!([]),
     );
-    assert!(count.as_u64().unwrap() >= 5, "resource timing entries: {count}");
+    assert!(
+        count.as_u64().unwrap() >= 5,
+        "resource timing entries: {count}"
+    );
     let page = http(service, "GET", "/", None);
     assert_eq!(page.status, 200);
     assert!(
@@ -517,7 +547,10 @@ fn ready_for(gauge: &str) -> String {
 
 #[test]
 fn planner_page_in_headless_chromium() {
-    let chromium = find_program("CHROMIUM", &["chromium", "chromium-browser", "google-chrome"]);
+    let chromium = find_program(
+        "CHROMIUM",
+        &["chromium", "chromium-browser", "google-chrome"],
+    );
     let driver = find_program("CHROMEDRIVER", &["chromedriver"]);
     let (Some(chromium), Some(driver)) = (chromium, driver) else {
         assert!(
@@ -548,17 +581,19 @@ fn planner_page_in_headless_chromium() {
     session.goto(&format!("http://{}/", service.addr));
 
     // The page opens on a gauge by itself; its list has every demo gauge.
-    session.wait_for(
-        "return document.body.dataset.state === 'ready'",
-        WAIT,
-    );
+    session.wait_for("return document.body.dataset.state === 'ready'", WAIT);
     let options = session.script(
         "return [...document.querySelectorAll('#gauge-select option')].map(o => o.value)",
         json!([]),
     );
     assert_eq!(
         options,
-        json!(["corrin-quay", "port-tamsin", "saltlow-sound", "wrenmouth-inlet"])
+        json!([
+            "corrin-quay",
+            "port-tamsin",
+            "saltlow-sound",
+            "wrenmouth-inlet"
+        ])
     );
     let dots = session.script(
         "return document.querySelectorAll('#gauge-plot .gauge-dot').length",
@@ -571,7 +606,10 @@ fn planner_page_in_headless_chromium() {
     session.click(&dot);
     session.wait_for(&ready_for("saltlow-sound"), WAIT);
     assert_eq!(
-        session.script("return document.getElementById('gauge-select').value", json!([])),
+        session.script(
+            "return document.getElementById('gauge-select').value",
+            json!([])
+        ),
         json!("saltlow-sound")
     );
     check_numbers(&session, service.addr, "saltlow-sound");
@@ -612,7 +650,10 @@ fn planner_page_in_headless_chromium() {
         "return document.documentElement.scrollWidth - document.documentElement.clientWidth",
         json!([]),
     );
-    assert!(overflow.as_i64().unwrap() <= 0, "sideways scrolling on a phone: {overflow}");
+    assert!(
+        overflow.as_i64().unwrap() <= 0,
+        "sideways scrolling on a phone: {overflow}"
+    );
     std::fs::write(dir.join("page-phone.png"), session.screenshot()).expect("screenshot");
     check_console(&session);
     session.quit();

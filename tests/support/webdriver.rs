@@ -20,9 +20,8 @@ pub struct HttpAnswer {
 impl HttpAnswer {
     /// The body as JSON.
     pub fn json(&self) -> Value {
-        serde_json::from_slice(&self.body).unwrap_or_else(|e| {
-            panic!("not JSON ({e}): {}", String::from_utf8_lossy(&self.body))
-        })
+        serde_json::from_slice(&self.body)
+            .unwrap_or_else(|e| panic!("not JSON ({e}): {}", String::from_utf8_lossy(&self.body)))
     }
 }
 
@@ -207,8 +206,10 @@ impl Session {
         self.cmd(
             "POST",
             "/actions",
-            Some(json!({ "actions": [{ "type": "key", "id": "keyboard", "actions": [
-                { "type": "keyDown", "value": key }, { "type": "keyUp", "value": key } ] }] })),
+            Some(
+                json!({ "actions": [{ "type": "key", "id": "keyboard", "actions": [
+                { "type": "keyDown", "value": key }, { "type": "keyUp", "value": key } ] }] }),
+            ),
         );
         self.cmd("DELETE", "/actions", None);
     }
