@@ -44,8 +44,12 @@ pub struct ServedModel {
 }
 
 impl ServedModel {
-    /// Prepares results for serving.
-    pub fn new(results: GaugeResults) -> Self {
+    /// Prepares results for serving; every outlook gets the standard cautions.
+    pub fn new(mut results: GaugeResults) -> Self {
+        for outlook in results.outlooks.values_mut() {
+            outlook.cautions =
+                crate::cautions::with_standard(std::mem::take(&mut outlook.cautions));
+        }
         let hindcast = Prepared::new(results.hindcast.clone());
         let outlooks = results
             .outlooks

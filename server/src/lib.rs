@@ -8,6 +8,7 @@
 pub mod api;
 pub mod auth;
 pub mod catalog;
+pub mod cautions;
 pub mod cli;
 pub mod config;
 mod cors;

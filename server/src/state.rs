@@ -322,3 +322,52 @@ pub fn install_results(
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn seeding_names_the_bad_file_and_line() {
+        let dir = std::env::temp_dir().join(format!("tidetally-seed-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).unwrap();
+        let toml = crate::upload::tests_support::EXAMPLE
+            .replace("port-alder-levels.csv.gz", "levels.csv")
+            .replace("enso = \"../drivers/enso-monthly.csv\"\n", "")
+            .replace("wind = \"port-alder-wind.csv\"\n", "");
+        std::fs::write(dir.join("port-alder.toml"), toml).unwrap();
+        std::fs::write(
+            dir.join("levels.csv"),
+            "time,level\n2020-01-01T00:00:00Z,x\n",
+        )
+        .unwrap();
+        let store = Store::open_in_memory().unwrap();
+        let err = store
+            .call_blocking(|c| Ok(seed_from_dir(c, &dir)))
+            .unwrap()
+            .unwrap_err()
+            .to_string();
+        assert!(
+            err.contains("levels.csv") && err.contains("line 2, field level"),
+            "{err}"
+        );
+
+        std::fs::write(
+            dir.join("levels.csv"),
+            "time,level\n2020-01-01T00:00:00Z,0.5\n",
+        )
+        .unwrap();
+        let n = store
+            .call_blocking(|c| Ok(seed_from_dir(c, &dir)))
+            .unwrap()
+            .unwrap();
+        assert_eq!(n, 1);
+        let inputs = store
+            .call_blocking(|c| load_inputs(c, "port-alder"))
+            .unwrap()
+            .unwrap();
+        assert_eq!(inputs.levels.unwrap().readings, 1);
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+}

@@ -257,6 +257,15 @@ async fn outlooks_are_served_from_installed_results() {
     assert!(o.header("etag").is_some());
     let default = get(&app, "/api/v1/gauges/a/outlook").await.json();
     assert_eq!(default["season"], "2026-DJF");
+    let cautions: Vec<&str> = default["cautions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|c| c.as_str().unwrap())
+        .collect();
+    assert_eq!(cautions[0], "A seasonal probability, not a warning.");
+    assert!(cautions.contains(&tidetally_server::cautions::DEFER_TO_OFFICIALS));
+    assert!(cautions.contains(&tidetally_server::cautions::NOT_A_WARNING));
     // P(N >= k) = 1 - sum_{j<k} pmf[j] for pmf [0.5, 0.3, 0.2].
     let k = get(&app, "/api/v1/gauges/a/outlook?season=2026-djf&k=2,1,3")
         .await
