@@ -306,6 +306,9 @@
     if (v >= 0.5) return "el_nino";
     return "neutral";
   }
+  const DRIVER_WORDS = { enso: "ENSO", mjo: "MJO active days", wind: "along-shore wind",
+    sea_level: "sea level", tide: "astronomical tide" };
+  function driverName(name) { return DRIVER_WORDS[name] || name.replace(/_/g, " "); }
   const ENSO_WORDS = { la_nina: "La Niña", neutral: "neutral", el_nino: "El Niño", unknown: "not known" };
 
   function linearTrend(xs, ys) {
@@ -368,6 +371,9 @@
         "Points near the dashed line mean the stated chances can be trusted."
       : "No past seasons were scored.");
     $("alt-skill").setAttribute("data-verdict", hindcast.skill.verdict);
+    const verdict = $("verdict-skill");
+    verdict.textContent = hindcast.skill.verdict_text;
+    verdict.className = `verdict ${hindcast.skill.verdict}`;
     table($("table-skill"), ["score", "this model", "long-term average", "trend only", "skill vs average"],
       hindcast.skill.scores.map((s) => [s.name, s.model.toFixed(3), s.climatology.toFixed(3), s.trend_only.toFixed(3),
         `${(s.skill_vs_climatology * 100).toFixed(0)}%`]));
@@ -380,14 +386,15 @@
     if (!list.length) { unavailable("drivers", "this outlook uses no drivers"); return; }
     const words = list.map((d) => {
       const pctChange = Math.round((d.rate_ratio - 1) * 100);
-      return `${d.name} (${d.value.toFixed(2)} ${d.unit}) ${pctChange >= 0 ? "raises" : "lowers"} the flood-day rate by ${Math.abs(pctChange)}%` +
+      return `${driverName(d.name)} (${d.value.toFixed(2)} ${d.unit}) ${pctChange >= 0 ? "raises" : "lowers"} the flood-day rate by ${Math.abs(pctChange)}%` +
         ` (from ${d.rate_ratio_ci[0].toFixed(2)} to ${d.rate_ratio_ci[1].toFixed(2)} times)`;
     });
     $("alt-drivers").textContent = `For next season: ${words.join("; ")}. An interval that crosses 1 means the effect may be nothing.`;
     table($("table-drivers"), ["driver", "next season's value", "rate ratio", "interval"],
-      list.map((d) => [d.name, `${d.value.toFixed(2)} ${d.unit}`, d.rate_ratio.toFixed(2),
+      list.map((d) => [`${driverName(d.name)} (${d.name})`, `${d.value.toFixed(2)} ${d.unit}`, d.rate_ratio.toFixed(2),
         `${d.rate_ratio_ci[0].toFixed(2)}–${d.rate_ratio_ci[1].toFixed(2)}`]));
-    replaceChart("drivers", (box) => TideCharts.drivers(box, list));
+    const named = list.map((d) => Object.assign({}, d, { name: driverName(d.name) }));
+    replaceChart("drivers", (box) => TideCharts.drivers(box, named));
   }
 
   // ---- downloads ----
