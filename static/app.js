@@ -308,6 +308,7 @@
   }
   const DRIVER_WORDS = { enso: "ENSO", mjo: "MJO active days", wind: "along-shore wind",
     sea_level: "sea level", tide: "astronomical tide" };
+  const DRIVER_SHORT = { enso: "ENSO", mjo: "MJO", wind: "wind", sea_level: "sea lvl", tide: "tide" };
   function driverName(name) { return DRIVER_WORDS[name] || name.replace(/_/g, " "); }
   const ENSO_WORDS = { la_nina: "La Niña", neutral: "neutral", el_nino: "El Niño", unknown: "not known" };
 
@@ -393,7 +394,7 @@
     table($("table-drivers"), ["driver", "next season's value", "rate ratio", "interval"],
       list.map((d) => [`${driverName(d.name)} (${d.name})`, `${d.value.toFixed(2)} ${d.unit}`, d.rate_ratio.toFixed(2),
         `${d.rate_ratio_ci[0].toFixed(2)}–${d.rate_ratio_ci[1].toFixed(2)}`]));
-    const named = list.map((d) => Object.assign({}, d, { name: driverName(d.name) }));
+    const named = list.map((d) => Object.assign({}, d, { name: DRIVER_SHORT[d.name] || d.name }));
     replaceChart("drivers", (box) => TideCharts.drivers(box, named));
   }
 

@@ -39,8 +39,8 @@
       scales: { x: { time: false }, pmf: { range: (u, lo, hi) => [0, Math.max(0.05, hi * 1.15)] }, cum: { range: [0, 1] } },
       axes: [
         axis({ label: "flood days in the season" }),
-        axis({ scale: "pmf", label: "chance: exactly", values: (u, v) => v.map(pct) }),
-        axis({ scale: "cum", side: 1, grid: { show: false }, label: "chance: this many or more", values: (u, v) => v.map(pct) }),
+        axis({ scale: "pmf", label: "exactly", values: (u, v) => v.map(pct) }),
+        axis({ scale: "cum", side: 1, grid: { show: false }, label: "this many or more", values: (u, v) => v.map(pct) }),
       ],
       series: [
         { label: "days" },
@@ -94,8 +94,8 @@
     const obs = [null].concat(points.map((p) => p.observed), [null]);
     const opts = Object.assign(size(el), {
       scales: { x: { time: false, range: [0, 1] }, y: { range: [0, 1] } },
-      axes: [axis({ label: "stated chance (at or below)", values: (u, v) => v.map(pct) }),
-        axis({ label: "how often it happened", values: (u, v) => v.map(pct) })],
+      axes: [axis({ label: "stated chance", values: (u, v) => v.map(pct) }),
+        axis({ label: "came true", values: (u, v) => v.map(pct) })],
       series: [
         { label: "stated", value: (u, v) => pct(v) },
         { label: "perfectly reliable", stroke: NEAR, width: 1.5, dash: [5, 5], points: { show: false }, value: (u, v) => pct(v) },
@@ -115,7 +115,7 @@
       scales: { x: { time: false, range: [-0.6, list.length - 0.4] }, y: { range: [Math.max(0, lo - pad), hi + pad] } },
       axes: [
         axis({ splits: () => x, values: () => list.map((d) => d.name), grid: { show: false } }),
-        axis({ label: "flood-day rate × (1 = no effect)", values: (u, v) => v.map((t) => t.toFixed(2)) }),
+        axis({ label: "rate ratio (1 = none)", values: (u, v) => v.map((t) => t.toFixed(2)) }),
       ],
       series: [
         { label: "driver", value: (u, v) => (v == null ? "" : list[v] ? list[v].name : "") },

@@ -661,6 +661,19 @@ fn planner_page_in_headless_chromium() {
     );
     session.window_size(1280, height.as_u64().unwrap_or(2400).min(6000) as u32);
     std::fs::write(dir.join("page-desktop.png"), session.screenshot()).expect("screenshot");
+    // Printing: the print style sheet hides the controls and keeps the outlook and cautions.
+    let hidden_in_print = session.script(
+        "const rules = [...document.styleSheets].flatMap(s => { try { return [...s.cssRules]; } catch (e) { return []; } });
+         return rules.some(r => r.media && r.media.mediaText === 'print' && r.cssText.includes('.card-tools'));",
+        json!([]),
+    );
+    assert_eq!(hidden_in_print, json!(true), "a print style sheet");
+    let pdf = session.print_pdf();
+    assert!(
+        pdf.starts_with(b"%PDF") && pdf.len() > 20_000,
+        "printed page"
+    );
+    std::fs::write(dir.join("page-print.pdf"), pdf).expect("PDF");
 
     // A phone-width view: one column, still drawn.
     session.window_size(390, 3000);

@@ -229,6 +229,12 @@ impl Session {
         decode_base64(value.as_str().expect("a base64 screenshot"))
     }
 
+    /// The page printed to PDF (W3C "Print Page"), as bytes.
+    pub fn print_pdf(&self) -> Vec<u8> {
+        let value = self.cmd("POST", "/print", Some(json!({ "background": true })));
+        decode_base64(value.as_str().expect("a base64 PDF"))
+    }
+
     /// The browser console log entries collected so far (Chromium's `goog:loggingPrefs`).
     pub fn browser_log(&self) -> Vec<Value> {
         let value = self.cmd("POST", "/se/log", Some(json!({ "type": "browser" })));
