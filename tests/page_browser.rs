@@ -235,6 +235,8 @@ fn start_driver(program: &Path) -> Driver {
         .spawn()
         .unwrap_or_else(|e| panic!("start {}: {e}", program.display()));
     let addr: SocketAddr = ([127, 0, 0, 1], port).into();
+    // Owned before the wait, so the driver is stopped even if it never gets ready.
+    let driver = Driver { child, addr };
     let start = Instant::now();
     loop {
         if std::net::TcpStream::connect(addr).is_ok()
@@ -245,7 +247,7 @@ fn start_driver(program: &Path) -> Driver {
         assert!(start.elapsed() < WAIT, "chromedriver did not start");
         std::thread::sleep(Duration::from_millis(100));
     }
-    Driver { child, addr }
+    driver
 }
 
 fn artifacts() -> PathBuf {

@@ -241,10 +241,18 @@ impl Session {
         value.as_array().cloned().unwrap_or_default()
     }
 
-    /// Ends the session (closes the browser).
-    pub fn quit(self) {
+    /// Ends the session (closes the browser); dropping the session does the same.
+    pub fn quit(self) {}
+}
+
+impl Drop for Session {
+    /// Closes the browser even when a check failed, so no Chromium outlives the test.
+    fn drop(&mut self) {
         let path = format!("/session/{}", self.id);
-        let _ = http(self.driver, "DELETE", &path, None);
+        if let Ok(stream) = TcpStream::connect(self.driver) {
+            drop(stream);
+            let _ = std::panic::catch_unwind(|| http(self.driver, "DELETE", &path, None));
+        }
     }
 }
 
