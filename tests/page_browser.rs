@@ -649,6 +649,15 @@ fn planner_page_in_headless_chromium() {
     );
     session.press("\u{E007}");
     session.wait_for(&ready_for("port-tamsin"), WAIT);
+    check_numbers(&session, service.addr, "port-tamsin");
+
+    // Choose from the list by keyboard: the next gauge after Port Tamsin is Saltlow Sound,
+    // then back up to Port Tamsin.
+    session.script("document.getElementById('gauge-select').focus()", json!([]));
+    session.press("\u{E015}");
+    session.wait_for(&ready_for("saltlow-sound"), WAIT);
+    session.press("\u{E013}");
+    session.wait_for(&ready_for("port-tamsin"), WAIT);
     let outlook = check_numbers(&session, service.addr, "port-tamsin");
     check_charts(&session);
     check_cautions(&session, &outlook);
