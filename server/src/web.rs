@@ -85,3 +85,54 @@ pub fn router<S: Clone + Send + Sync + 'static>() -> Router<S> {
         )
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use axum::body::{Body, to_bytes};
+    use axum::http::{Request, StatusCode};
+    use tower::ServiceExt;
+
+    use super::*;
+
+    async fn get(path: &str) -> (StatusCode, axum::http::HeaderMap, Vec<u8>) {
+        let app: Router = router();
+        let response = app
+            .oneshot(Request::get(path).body(Body::empty()).unwrap())
+            .await
+            .unwrap();
+        let status = response.status();
+        let headers = response.headers().clone();
+        let body = to_bytes(response.into_body(), usize::MAX).await.unwrap();
+        (status, headers, body.to_vec())
+    }
+
+    #[tokio::test]
+    async fn every_page_file_is_served_with_its_type_and_a_self_only_policy() {
+        for asset in ASSETS {
+            let (status, headers, body) = get(asset.path).await;
+            assert_eq!(status, StatusCode::OK, "{}", asset.path);
+            assert_eq!(headers[header::CONTENT_TYPE], asset.content_type);
+            assert_eq!(
+                headers[header::CONTENT_SECURITY_POLICY],
+                CONTENT_SECURITY_POLICY
+            );
+            assert!(!body.is_empty(), "{} is empty", asset.path);
+        }
+    }
+
+    #[tokio::test]
+    async fn the_page_names_only_files_this_router_serves() {
+        let (_, _, body) = get("/").await;
+        let html = String::from_utf8(body).unwrap();
+        for part in html
+            .split(['"', '\''])
+            .filter(|p| p.starts_with("/static/"))
+        {
+            assert!(
+                ASSETS.iter().any(|a| a.path == part),
+                "index.html names {part}, which is not served"
+            );
+        }
+        assert!(!html.contains("http://") && !html.contains("https://"));
+    }
+}
