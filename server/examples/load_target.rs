@@ -42,7 +42,7 @@ fn fill(state: &AppState, gauges: usize) -> anyhow::Result<()> {
         let id = format!("g{i:02}");
         let toml = format!(
             "id = \"{id}\"\nname = \"Load gauge {i}\"\nlatitude = 40.0\nlongitude = -70.0\n\
-             datum = \"STND\"\nflood_threshold_m = 0.8\nutc_offset = \"-05:00\"\n\
+             datum = \"STND\"\nflood_threshold_m = 0.8\nutc_offset = \"-05:00\"\ncoast_orientation_deg = 90.0\n\
              [levels]\nfile = \"x.csv\"\nunits = \"m\"\n"
         );
         state.store.call_blocking(|c| {

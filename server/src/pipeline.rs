@@ -6,8 +6,12 @@
 //! HTTP edge serves as `503 /problems/not-available`.
 
 use std::collections::BTreeMap;
+use std::path::Path;
 
 use serde::{Deserialize, Serialize};
+
+use tidetally_model::gauge::{self, GaugeConfig};
+use tidetally_model::ingest;
 
 use crate::api;
 use crate::store::LevelsRecord;
@@ -80,10 +84,45 @@ fn require_levels(inputs: &GaugeInputs) -> Result<&LevelsRecord, PipelineError> 
     })
 }
 
-/// The season table of a gauge (counts of flood days, observed days and predictors).
+/// The model's validated gauge description, from the stored TOML (its data paths are not
+/// used: the data come from the store).
+fn gauge_config(inputs: &GaugeInputs) -> Result<GaugeConfig, PipelineError> {
+    let source = format!("{}.toml", inputs.meta.id);
+    GaugeConfig::from_toml_str(&inputs.toml, &source, Path::new(""))
+        .map_err(|e| PipelineError::Invalid(e.to_string()))
+}
+
+/// The season table of a gauge (counts of flood days and observed days per season; the
+/// driver predictors join it once the drivers step is wired).
 pub fn season_history(inputs: &GaugeInputs) -> Result<api::SeasonHistory, PipelineError> {
-    require_levels(inputs)?;
-    Err(PipelineError::NotAvailable("season table"))
+    let levels = require_levels(inputs)?;
+    let config = gauge_config(inputs)?;
+    let name = format!("water levels of gauge {}", inputs.meta.id);
+    let summary = ingest::summarize(levels.csv.as_slice(), &config.ingest_options(), &name)
+        .map_err(|e| PipelineError::Invalid(e.to_string()))?;
+    let record = gauge::record_from_summary(&config, summary, &name)
+        .map_err(|e| PipelineError::Invalid(e.to_string()))?;
+    Ok(api::SeasonHistory {
+        gauge: config.id.clone(),
+        datum: config.datum.clone(),
+        flood_threshold_m: config.flood_threshold_m,
+        seasons: record.seasons.rows.iter().map(season_row).collect(),
+    })
+}
+
+/// Model season row -> wire season row.
+fn season_row(row: &tidetally_model::season::SeasonRow) -> api::SeasonRow {
+    api::SeasonRow {
+        season: row.label.clone(),
+        first_day: row.season.first_day().to_string(),
+        last_day: row.season.last_day().to_string(),
+        calendar_days: row.calendar_days,
+        observed_days: row.observed_days,
+        flood_days: row.flood_days,
+        completeness: row.completeness,
+        used_in_fit: row.included,
+        predictors: BTreeMap::new(),
+    }
 }
 
 /// Fits the gauge's model, scores it out of sample and issues its outlooks.

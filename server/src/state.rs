@@ -47,20 +47,20 @@ impl AppState {
 #[derive(Debug, thiserror::Error)]
 pub enum SeedError {
     /// A file could not be read.
-    #[error("{path}: {source}")]
+    #[error("{path}: {error}")]
     Read {
         /// The file.
         path: PathBuf,
         /// The I/O error.
-        source: std::io::Error,
+        error: std::io::Error,
     },
     /// A file failed its check.
-    #[error("{path}: {source}")]
+    #[error("{path}: {problem}")]
     Invalid {
         /// The file.
         path: PathBuf,
         /// What is wrong.
-        source: UploadError,
+        problem: UploadError,
     },
     /// The store failed.
     #[error(transparent)]
@@ -71,14 +71,14 @@ pub enum SeedError {
 /// the number of gauges stored.
 pub fn seed_from_dir(conn: &mut Connection, dir: &Path) -> Result<usize, SeedError> {
     let read = |path: &Path| {
-        std::fs::read(path).map_err(|source| SeedError::Read {
+        std::fs::read(path).map_err(|error| SeedError::Read {
             path: path.to_owned(),
-            source,
+            error,
         })
     };
-    let entries = std::fs::read_dir(dir).map_err(|source| SeedError::Read {
+    let entries = std::fs::read_dir(dir).map_err(|error| SeedError::Read {
         path: dir.to_owned(),
-        source,
+        error,
     })?;
     let mut tomls: Vec<PathBuf> = entries
         .filter_map(|e| e.ok().map(|e| e.path()))
@@ -87,9 +87,9 @@ pub fn seed_from_dir(conn: &mut Connection, dir: &Path) -> Result<usize, SeedErr
     tomls.sort();
     let now = store::now_rfc3339();
     for toml_path in &tomls {
-        let invalid = |path: &Path, source| SeedError::Invalid {
+        let invalid = |path: &Path, problem| SeedError::Invalid {
             path: path.to_owned(),
-            source,
+            problem,
         };
         let text = String::from_utf8_lossy(&read(toml_path)?).into_owned();
         let meta = upload::parse_gauge_toml(&text).map_err(|e| invalid(toml_path, e))?;

@@ -353,11 +353,45 @@ async fn season_csv_is_negotiated_and_bad_formats_refused() {
     get(&app, "/api/v1/gauges/a/seasons?format=xml")
         .await
         .assert_problem(400, "bad-request");
-    // Until the season table is wired into pipeline.rs the step answers 503 not-available.
-    let p = get(&app, "/api/v1/gauges/a/seasons?format=csv")
-        .await
-        .assert_problem(503, "not-available");
-    assert!(p["detail"].as_str().unwrap().contains("season table"));
+    // Levels of two days in DJF 2019 (local standard time -05:00), one reading a day: the
+    // day of 2020-01-02 reaches the 0.85 m threshold, 2020-01-01 does not.
+    let levels = "time,level\n2020-01-01T17:00:00Z,0.40\n2020-01-02T17:00:00Z,0.90\n";
+    write(&app, "PUT", "/api/v1/gauges/a/levels", levels).await;
+    let h = get(&app, "/api/v1/gauges/a/seasons").await;
+    assert_eq!(
+        h.status,
+        StatusCode::OK,
+        "{}",
+        String::from_utf8_lossy(&h.body)
+    );
+    let h = h.json();
+    let djf = h["seasons"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r["season"] == "2019-DJF")
+        .expect("2019-DJF row");
+    assert_eq!(djf["flood_days"], 1);
+    assert_eq!(djf["observed_days"], 2);
+    assert_eq!(
+        djf["calendar_days"], 91,
+        "Dec 2019 + Jan 2020 + Feb 2020 (leap year)"
+    );
+    let csv = send(
+        &app,
+        "GET",
+        "/api/v1/gauges/a/seasons",
+        &[("accept", "text/csv")],
+        vec![],
+    )
+    .await;
+    assert_eq!(csv.header("content-type"), Some("text/csv; charset=utf-8"));
+    let text = String::from_utf8(csv.body).unwrap();
+    assert!(text.starts_with("season,first_day,last_day,"), "{text}");
+    assert!(
+        text.contains("2019-DJF,2019-12-01,2020-02-29,91,2,1,"),
+        "{text}"
+    );
 }
 
 #[tokio::test]

@@ -20,9 +20,9 @@ pub struct UploadReceipt {
 }
 
 /// An ENSO forecast for a target season: ensemble members per model, or category
-/// probabilities (DEVELOPERS.md, "Driver series").
+/// probabilities (DEVELOPERS.md, "Driver series"). Extra top-level fields (e.g. a `note`)
+/// are allowed and not kept.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-#[serde(deny_unknown_fields)]
 pub struct EnsoForecast {
     /// Target season label.
     pub season: String,

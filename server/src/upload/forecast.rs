@@ -76,6 +76,9 @@ mod tests {
         let probs = br#"{"season": "2026-DJF", "issued": "2026-11-15",
             "probabilities": {"la_nina": 0.55, "neutral": 0.40, "el_nino": 0.05}}"#;
         assert!(parse_enso_forecast(probs).is_ok());
+        let noted = br#"{"season": "2026-DJF", "issued": "2026-11-15", "note": "invented",
+            "models": [{"name": "model-a", "members": [-0.8]}]}"#;
+        assert!(parse_enso_forecast(noted).is_ok());
     }
 
     #[test]

@@ -171,6 +171,13 @@ pub fn parse_gauge_toml(text: &str) -> Result<GaugeMeta, UploadError> {
             "each k must be 1 to 366 days".into(),
         ));
     }
+    // The model's loader must accept it too (the fields the service does not look at).
+    tidetally_model::gauge::GaugeConfig::from_toml_str(
+        text,
+        "gauge TOML",
+        std::path::Path::new(""),
+    )
+    .map_err(|err| doc(err.to_string()))?;
     Ok(GaugeMeta {
         id: raw.id,
         name: raw.name,

@@ -29,6 +29,7 @@ longitude = -67.31
 datum = "STND"
 flood_threshold_m = 0.85
 utc_offset = "-05:00"
+coast_orientation_deg = 135.0
 
 [levels]
 file = "{id}-levels.csv"
