@@ -29,7 +29,6 @@ pub enum GaugeError {
         /// The file.
         path: PathBuf,
         /// The I/O error.
-        #[source]
         error: std::io::Error,
     },
     /// The TOML does not parse or has unknown or mistyped keys.
@@ -61,7 +60,6 @@ pub enum GaugeError {
         /// The level file.
         path: String,
         /// What is missing.
-        #[source]
         error: DailyError,
     },
     /// The season table could not be built.
@@ -70,7 +68,6 @@ pub enum GaugeError {
         /// The TOML file or label.
         source_name: String,
         /// The failure.
-        #[source]
         error: SeasonTableError,
     },
 }

@@ -43,7 +43,6 @@ pub enum IngestError {
         /// The file or label being read.
         source_name: String,
         /// The I/O error.
-        #[source]
         error: std::io::Error,
     },
     /// The file has no header line.

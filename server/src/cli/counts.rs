@@ -71,12 +71,12 @@ fn output<'a>(config: &'a GaugeConfig, record: &GaugeRecord) -> CountsOutput<'a>
 pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
     let (config, record) = load(&args)?;
     if args.csv {
-        let stdout = std::io::stdout();
+        let mut csv = Vec::new();
         record
             .seasons
-            .write_csv(stdout.lock())
+            .write_csv(&mut csv)
             .context("writing the season table")?;
-        Ok(())
+        super::print_text(&String::from_utf8_lossy(&csv))
     } else {
         super::print_json(&output(&config, &record))
     }

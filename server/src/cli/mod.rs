@@ -109,6 +109,9 @@ pub struct TideAnalyzeArgs {
     /// Latitude of the gauge in degrees north (for the nodal corrections' reporting).
     #[arg(long)]
     pub latitude: Option<f64>,
+    /// Fit a linear trend along with the mean.
+    #[arg(long)]
+    pub trend: bool,
 }
 
 /// Arguments of `tide predict`.
@@ -134,6 +137,13 @@ pub struct DatumsArgs {
     /// Water-level CSV (`time,level[,flag]`, plain or gzip).
     #[arg(long)]
     pub csv: PathBuf,
+    /// A control gauge's water-level CSV covering the same period, for the modified range
+    /// ratio adjustment of a short record to the control's epoch.
+    #[arg(long, requires = "control_datums")]
+    pub control: Option<PathBuf>,
+    /// The control gauge's accepted epoch datums (JSON as written by `datums`).
+    #[arg(long, requires = "control")]
+    pub control_datums: Option<PathBuf>,
 }
 
 /// Arguments of `score`.
@@ -160,7 +170,17 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
 /// Prints a value as pretty JSON on stdout.
 #[allow(dead_code, reason = "used by the pipeline commands as they land")]
 pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
-    let text = serde_json::to_string_pretty(value)?;
-    println!("{text}");
-    Ok(())
+    let mut text = serde_json::to_string_pretty(value)?;
+    text.push('\n');
+    print_text(&text)
+}
+
+/// Writes text to stdout; a reader that closes the pipe early (`| head`) is not an error.
+pub(crate) fn print_text(text: &str) -> anyhow::Result<()> {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe => Err(err.into()),
+        _ => Ok(()),
+    }
 }
