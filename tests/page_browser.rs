@@ -129,56 +129,20 @@ impl Drop for Service {
     }
 }
 
-/// Seeds the demo coastline. If the service's upload check rejects the demo ENSO forecast
-/// for its descriptive `note` field, seeds a copy without that one field, and says so.
-fn seed_demo(store: &Store, scratch: &Path) -> usize {
-    let seed = |dir: &Path| {
-        store
-            .call_blocking(|conn| Ok(state::seed_from_dir(conn, dir)))
-            .expect("store answers")
-    };
-    let demo = workspace().join("demo-data");
-    match seed(&demo.join("gauges")) {
-        Ok(n) => n,
-        Err(err) if err.to_string().contains("note") || format!("{err:?}").contains("`note`") => {
-            eprintln!(
-                "NOTE: the service rejects the demo ENSO forecast's `note` field ({err:?}); seeding a copy without it"
-            );
-            let copy = scratch.join("demo");
-            for sub in ["gauges", "drivers"] {
-                std::fs::create_dir_all(copy.join(sub)).expect("copy dir");
-                for entry in std::fs::read_dir(demo.join(sub)).expect("demo dir") {
-                    let path = entry.expect("entry").path();
-                    std::fs::copy(
-                        &path,
-                        copy.join(sub).join(path.file_name().expect("a name")),
-                    )
-                    .expect("copy demo file");
-                }
-            }
-            for entry in std::fs::read_dir(copy.join("drivers")).expect("copied drivers") {
-                let path = entry.expect("entry").path();
-                if path.extension().is_some_and(|x| x == "json") {
-                    let mut doc: Value =
-                        serde_json::from_slice(&std::fs::read(&path).expect("read"))
-                            .expect("forecast JSON");
-                    if let Some(obj) = doc.as_object_mut() {
-                        obj.remove("note");
-                    }
-                    std::fs::write(&path, doc.to_string()).expect("write");
-                }
-            }
-            seed(&copy.join("gauges")).expect("demo data seeds")
-        }
-        Err(err) => panic!("demo data seeds: {err:?}"),
-    }
+/// Seeds the store with the demo coastline.
+fn seed_demo(store: &Store) -> usize {
+    let gauges = workspace().join("demo-data/gauges");
+    store
+        .call_blocking(|conn| Ok(state::seed_from_dir(conn, &gauges)))
+        .expect("store answers")
+        .unwrap_or_else(|err| panic!("demo data seeds: {err:?}"))
 }
 
 /// The real service over a temp SQLite store seeded with the demo coastline.
 fn start_service() -> Service {
     let dir = fresh_dir("store");
     let store = Store::open(&dir.join("store.db")).expect("store opens");
-    let seeded = seed_demo(&store, &dir);
+    let seeded = seed_demo(&store);
     assert_eq!(seeded, 4, "the demo coastline has four gauges");
     let app_state = AppState::new(store, None, Duration::from_secs(60));
     state::load_catalog(&app_state).expect("catalog loads");
