@@ -61,7 +61,8 @@
     let body = null;
     try { body = await response.json(); } catch (err) { body = null; }
     if (!response.ok) {
-      const detail = body && body.detail ? body.detail : `the service answered ${response.status}`;
+      const said = body && body.detail ? String(body.detail) : `the service answered ${response.status}`;
+      const detail = said.replace(/[.\s]+$/, "");
       return { ok: false, status: response.status, detail };
     }
     return { ok: true, data: body };
@@ -104,6 +105,7 @@
     }
     for (let lat = Math.ceil(latMin / step) * step; lat <= latMax; lat += step) {
       svg.append(mk("line", { class: "grid-line", x1: 0, x2: W, y1: py(lat), y2: py(lat) }));
+      if (py(lat) < 16 || py(lat) > H - 18) continue;
       const t = mk("text", { class: "grid-label", x: 4, y: py(lat) - 3 });
       t.textContent = `${Math.abs(lat).toFixed(step < 0.25 ? 1 : 2)}°${lat < 0 ? "S" : "N"}`;
       svg.append(t);

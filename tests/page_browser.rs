@@ -578,7 +578,22 @@ fn planner_page_in_headless_chromium() {
     session.goto(&format!("http://{}/", service.addr));
 
     // The page opens on a gauge by itself; its list has every demo gauge.
-    session.wait_for("return document.body.dataset.state === 'ready'", WAIT);
+    session.wait_for(
+        "return ['ready', 'no-outlook'].includes(document.body.dataset.state)",
+        WAIT,
+    );
+    let status = session.script(
+        "return [document.body.dataset.state, document.getElementById('status').textContent]",
+        json!([]),
+    );
+    if status[0] != "ready" {
+        std::fs::write(
+            artifacts().join("page-no-outlook.png"),
+            session.screenshot(),
+        )
+        .expect("screenshot");
+        panic!("the page shows no outlook: {}", status[1]);
+    }
     let options = session.script(
         "return [...document.querySelectorAll('#gauge-select option')].map(o => o.value)",
         json!([]),
