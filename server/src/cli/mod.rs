@@ -8,6 +8,7 @@ use clap::{Args, Parser, Subcommand};
 mod counts;
 mod fit;
 mod glm;
+mod hindcast;
 mod outlook;
 mod score;
 mod serve;
@@ -43,6 +44,9 @@ pub enum Command {
     Fit(GaugeArgs),
     /// The seasonal outlook of flood days for a target season.
     Outlook(OutlookArgs),
+    /// Out-of-sample skill of the gauge's model against the climatology and the trend-only
+    /// baseline (both schemes, every score, bootstrap intervals, verdicts).
+    Hindcast(GaugeArgs),
 }
 
 /// Arguments of `serve`.
@@ -194,6 +198,7 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
         Command::Score(args) => score::run(args),
         Command::Fit(args) => fit::run(args),
         Command::Outlook(args) => outlook::run(args),
+        Command::Hindcast(args) => hindcast::run(args),
     }
 }
 

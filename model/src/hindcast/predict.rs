@@ -1,0 +1,86 @@
+//! The predictive distribution of one held-out season, built the way the outlook builds
+//! one: an equal-weight mixture of `draws` components, component `d` pairing parameter draw
+//! `d` of the training fit with driver scenario `d`. In a scenario, drivers known at issue
+//! time take the season's own value; the others take the value of one training season drawn
+//! at random (the same season for all of them, so MJO and wind stay paired as they
+//! happened). The exposure is the season's observed days, and the distribution is truncated
+//! there, so it is the distribution of the count that was actually observed.
+
+use rand::Rng;
+
+use super::HindcastError;
+use crate::fit::{DesignRow, GaugeModel, Predictor};
+use crate::glm::PmfMixture;
+
+/// Where each of a model's predictors takes its value from in a scenario.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Source {
+    /// Column `usize` of the target season's own row.
+    Target(usize),
+    /// Column `usize` of a resampled training season's row.
+    Resampled(usize),
+}
+
+/// Sources of `model`'s predictors, in the model's order, given the design's columns.
+pub(crate) fn sources(
+    model: &GaugeModel,
+    columns: &[Predictor],
+    known: impl Fn(Predictor) -> bool,
+) -> Vec<Source> {
+    model
+        .predictors
+        .iter()
+        .map(|&p| {
+            let column = columns
+                .iter()
+                .position(|&c| c == p)
+                .expect("a model is fitted on a selection of the design's columns");
+            if known(p) {
+                Source::Target(column)
+            } else {
+                Source::Resampled(column)
+            }
+        })
+        .collect()
+}
+
+/// The predictive pmf (index = days, `0..=observed days`) of `target` under `model`;
+/// `scenario_rows[d]` is the training season that scenario `d` resamples (cycled when
+/// shorter than `draws`).
+pub(crate) fn case_pmf(
+    model: &GaugeModel,
+    sources: &[Source],
+    target: &DesignRow,
+    scenario_rows: &[&DesignRow],
+    draws: usize,
+    rng: &mut impl Rng,
+) -> Result<Vec<f64>, HindcastError> {
+    let n_max = target.observed_days as usize;
+    let offset = f64::from(target.observed_days).ln();
+    let parameters = model.glm.draw_parameters(rng, draws);
+    let mut mixture = PmfMixture::new(n_max);
+    let mut x = vec![0.0; sources.len()];
+    for (d, draw) in parameters.iter().enumerate() {
+        let past = scenario_rows[d % scenario_rows.len()];
+        for (slot, source) in x.iter_mut().zip(sources) {
+            *slot = match *source {
+                Source::Target(c) => target.x[c],
+                Source::Resampled(c) => past.x[c],
+            };
+        }
+        // A draw whose mean under- or overflows is skipped, as in the outlook; too many
+        // skips is an error below.
+        let _ = draw.add_to(&mut mixture, &x, offset);
+    }
+    let used = mixture.components();
+    let degenerate = || HindcastError::DegenerateDraws {
+        season: target.season.label(),
+        used,
+        drawn: parameters.len(),
+    };
+    if used * 2 < parameters.len() {
+        return Err(degenerate());
+    }
+    let mixed = mixture.finish().ok_or_else(degenerate)?;
+    Ok(mixed.distribution.pmf)
+}
