@@ -9,13 +9,13 @@ use std::path::Path;
 use chrono::NaiveDate;
 
 use super::design::{DriverValue, SeasonData};
-use super::predictor::Predictor;
 use crate::drivers::{
     self, Coast, Driver, DriverInputs, EnsoForecast, EnsoSeries, MonthlyMeanLevel, PhaseSet,
     PredictorSettings, RmmSeries, SeaLevelSource, SeasonPredictors, SeasonalCycle, TrendShape,
     WindSeries, WindStatistic,
 };
 use crate::gauge::{self, GaugeConfig, GaugeRecord};
+use crate::predictor::Predictor;
 use crate::season::Season;
 use crate::tide::risk::{RiskConfig, RiskParams};
 use crate::tide::{AnalysisParams, TideModel};
@@ -197,7 +197,7 @@ pub fn load_drivers(
     let sea_level = drivers::fit_trend(&months, TrendShape::Linear, SeasonalCycle::default())
         .ok()
         .map(SeaLevelSource::Fitted);
-    let tide = if config.model.predictors.contains(&gauge::Predictor::Tide) {
+    let tide = if config.model.predictors.contains(&Predictor::Tide) {
         let series = gauge::load_levels(config)?;
         Some(tidal_driver(config, &series.times, &series.levels_m)?)
     } else {
@@ -280,17 +280,6 @@ pub fn predictor_settings(config: &GaugeConfig) -> Result<PredictorSettings, Pre
         coast: Coast::new(config.coast_orientation_deg, config.latitude).ok(),
         flood_threshold_m: config.flood_threshold_m,
     })
-}
-
-/// The model's predictor for a gauge TOML predictor.
-pub fn predictor_of(p: gauge::Predictor) -> Predictor {
-    match p {
-        gauge::Predictor::Enso => Predictor::Enso,
-        gauge::Predictor::Mjo => Predictor::Mjo,
-        gauge::Predictor::Wind => Predictor::Wind,
-        gauge::Predictor::SeaLevel => Predictor::SeaLevel,
-        gauge::Predictor::Tide => Predictor::Tide,
-    }
 }
 
 /// The drivers module's driver for a model predictor (`None` for the tide, which the tide
@@ -414,12 +403,7 @@ fn upcoming_seasons(config: &GaugeConfig, last: NaiveDate, years: i32) -> Vec<Se
 impl PreparedGauge {
     /// The model predictors the gauge's TOML asks for.
     pub fn requested_predictors(&self) -> Vec<Predictor> {
-        self.config
-            .model
-            .predictors
-            .iter()
-            .map(|&p| predictor_of(p))
-            .collect()
+        self.config.model.predictors.iter().copied().collect()
     }
 
     /// The tidal driver of `season`: from the record's seasons or the precomputed upcoming
