@@ -171,15 +171,11 @@ pub fn load_drivers(
                 path: name(p),
                 error,
             })?;
-            let (text, note) = split_forecast_note(&text);
-            if let Some(note) = note {
+            let forecast = EnsoForecast::parse(text.as_bytes(), &name(p), &config.seasons.specs)?;
+            if let Some(note) = &forecast.note {
                 notes.push(format!("ENSO forecast note: {note}"));
             }
-            Some(EnsoForecast::parse(
-                text.as_bytes(),
-                &name(p),
-                &config.seasons.specs,
-            )?)
+            Some(forecast)
         }
         None => None,
     };
@@ -212,23 +208,6 @@ pub fn load_drivers(
         tide,
         notes,
     })
-}
-
-/// Splits a free-text top-level `"note"` off an ENSO forecast JSON (the demo's forecast
-/// carries one; the forecast parser accepts only the documented fields). Text without a
-/// note, or that is not a JSON object, is returned unchanged for the parser to judge, so its
-/// error positions stay those of the file.
-fn split_forecast_note(text: &str) -> (std::borrow::Cow<'_, str>, Option<String>) {
-    let Ok(serde_json::Value::Object(mut object)) = serde_json::from_str(text) else {
-        return (text.into(), None);
-    };
-    match object.remove("note") {
-        Some(serde_json::Value::String(note)) => {
-            let rest = serde_json::Value::Object(object).to_string();
-            (rest.into(), Some(note))
-        }
-        _ => (text.into(), None),
-    }
 }
 
 /// The tidal driver from a gauge's readings (times in unix seconds, levels in metres): a
