@@ -382,7 +382,7 @@ fn upcoming_seasons(config: &GaugeConfig, last: NaiveDate, years: i32) -> Vec<Se
 impl PreparedGauge {
     /// The model predictors the gauge's TOML asks for.
     pub fn requested_predictors(&self) -> Vec<Predictor> {
-        self.config.model.predictors.iter().copied().collect()
+        self.config.model.predictors.clone()
     }
 
     /// The tidal driver of `season`: from the record's seasons or the precomputed upcoming
