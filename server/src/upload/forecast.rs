@@ -138,5 +138,10 @@ mod tests {
             assert!(err.starts_with("ENSO forecast JSON: "), "{err}");
             assert!(err.contains(expected), "{expected}: {err}");
         }
+        // The model's tolerance on the sum applies: a forecast the pipeline would refuse is
+        // refused on upload (rounded percentages summing to 99 included).
+        let rounded = br#"{"season": "2026-DJF", "issued": "2026-11-15",
+            "probabilities": {"la_nina": 0.33, "neutral": 0.33, "el_nino": 0.33}}"#;
+        assert!(parse_enso_forecast(rounded).is_err());
     }
 }
