@@ -10,47 +10,21 @@ use super::UploadError;
 
 const WHAT: &str = "ENSO forecast JSON";
 
-/// The top-level fields the model reads; others (e.g. a `note`) are allowed and not kept.
-const KNOWN_FIELDS: [&str; 4] = ["season", "issued", "models", "probabilities"];
-
 /// Parses and checks an ENSO forecast with the model's parser: a season label, an issue date,
 /// and either non-empty finite ensemble members per model or three category probabilities
 /// summing to 1.
 ///
-/// A forecast is not tied to one gauge, so its season name is checked for shape only (any
-/// valid season name, e.g. a gauge's custom `NDJFM`); the pipeline checks it against a
-/// gauge's seasons when it uses the forecast.
+/// A top-level free-text `note` is allowed and not kept; other unknown fields are refused,
+/// as the model refuses them. A forecast is not tied to one gauge, so its season name is
+/// checked for shape only (any valid season name, e.g. a gauge's custom `NDJFM`); the
+/// pipeline checks it against a gauge's seasons when it uses the forecast.
 pub fn parse_enso_forecast(bytes: &[u8]) -> Result<EnsoForecast, UploadError> {
     let doc = |message: String| UploadError::Document {
         what: WHAT.to_owned(),
         message,
     };
-    // Syntax errors are reported here, at their place in the upload.
-    let value: serde_json::Value = serde_json::from_slice(bytes).map_err(|e| doc(e.to_string()))?;
-    let extra: Vec<&str> = value
-        .as_object()
-        .map(|o| {
-            o.keys()
-                .map(String::as_str)
-                .filter(|k| !KNOWN_FIELDS.contains(k))
-                .collect()
-        })
-        .unwrap_or_default();
-    let filtered;
-    let input: &[u8] = if extra.is_empty() {
-        bytes
-    } else {
-        let mut object = value.as_object().cloned().unwrap_or_default();
-        object.retain(|k, _| KNOWN_FIELDS.contains(&k.as_str()));
-        filtered = serde_json::to_vec(&object).expect("a JSON object always serializes");
-        &filtered
-    };
-    let specs = label_specs(&value);
-    let forecast = ModelForecast::parse(input, WHAT, &specs).map_err(|e| match e {
-        ForecastError::Json { message, .. } if !extra.is_empty() => doc(format!(
-            "{message} (position in the forecast without its extra fields {})",
-            extra.join(", ")
-        )),
+    let forecast = ModelForecast::parse(bytes, WHAT, &label_specs(bytes)).map_err(|e| match e {
+        // serde_json's message names the line and column.
         ForecastError::Json { message, .. } => doc(message),
         ForecastError::Invalid { field, problem, .. } => doc(format!("field {field}: {problem}")),
     })?;
@@ -60,9 +34,11 @@ pub fn parse_enso_forecast(bytes: &[u8]) -> Result<EnsoForecast, UploadError> {
 /// The season definitions to read the label against: the label's own name (as a one-month
 /// season; only the name matters here), or the default seasons when it has no valid name so
 /// that the model's parser names the problem.
-fn label_specs(value: &serde_json::Value) -> Vec<SeasonSpec> {
-    value
-        .get("season")
+fn label_specs(bytes: &[u8]) -> Vec<SeasonSpec> {
+    serde_json::from_slice::<serde_json::Value>(bytes)
+        .ok()
+        .as_ref()
+        .and_then(|value| value.get("season"))
         .and_then(serde_json::Value::as_str)
         .and_then(|label| label.trim().split_once('-'))
         .and_then(|(_, name)| SeasonSpec::new(name, 1, 1).ok())
@@ -138,6 +114,10 @@ mod tests {
             assert!(err.starts_with("ENSO forecast JSON: "), "{err}");
             assert!(err.contains(expected), "{expected}: {err}");
         }
+        let extra = br#"{"season": "2026-DJF", "issued": "2026-11-15", "colour": "blue",
+            "models": [{"name": "a", "members": [1.0]}]}"#;
+        let err = parse_enso_forecast(extra).unwrap_err().to_string();
+        assert!(err.contains("colour"), "{err}");
         // The model's tolerance on the sum applies: a forecast the pipeline would refuse is
         // refused on upload (rounded percentages summing to 99 included).
         let rounded = br#"{"season": "2026-DJF", "issued": "2026-11-15",

@@ -163,7 +163,7 @@ mod demo_files {
         ] {
             assert!(scan_csv(kind, &demo(file)).unwrap().rows > 0, "{file}");
         }
-        // It carries a top-level `note`, which is allowed and not kept.
+        // It carries a top-level `note`, which the model allows.
         let forecast = parse_enso_forecast(&demo("drivers/enso-forecast-2026-DJF.json")).unwrap();
         assert_eq!(forecast.season, "2026-DJF");
     }
