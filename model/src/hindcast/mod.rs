@@ -631,20 +631,21 @@ fn run_scheme(
         pmfs,
     };
     let scored = scoring::score(&set, &kinds, exceed_days)?;
-    let mut skill = scoring::skill(
+    let skill = scoring::skill(
         &scored,
         &kinds,
-        &[ModelKind::Drivers, ModelKind::TrendOnly],
-        ModelKind::Climatology,
+        &[
+            scoring::Comparison {
+                models: &[ModelKind::Drivers, ModelKind::TrendOnly],
+                reference: ModelKind::Climatology,
+            },
+            scoring::Comparison {
+                models: &[ModelKind::Drivers],
+                reference: ModelKind::TrendOnly,
+            },
+        ],
         bootstrap,
     );
-    skill.extend(scoring::skill(
-        &scored,
-        &kinds,
-        &[ModelKind::Drivers],
-        ModelKind::TrendOnly,
-        bootstrap,
-    ));
     report.models = scored.table;
     report.skill = skill;
     let n = report.cases.len();
