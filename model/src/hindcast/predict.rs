@@ -4,13 +4,19 @@
 //! time take the season's own value; the others take the value of one training season drawn
 //! at random (the same season for all of them, so MJO and wind stay paired as they
 //! happened). The exposure is the season's observed days, and the distribution is truncated
-//! there, so it is the distribution of the count that was actually observed.
+//! there, so it is the distribution of the count that was actually observed. Each component
+//! is also cut where its upper tail falls below [`TAIL_CUT`] of its mass (and renormalised),
+//! which changes no probability by more than that share and skips the far tail's arithmetic.
 
 use rand::Rng;
 
 use super::HindcastError;
 use crate::fit::{DesignRow, GaugeModel, Predictor};
 use crate::glm::PmfMixture;
+
+/// Share of a component's mass below which its upper tail is cut (far below any score's
+/// resolution: the log score floors probabilities at a far larger value).
+pub(crate) const TAIL_CUT: f64 = 1e-12;
 
 /// Where each of a model's predictors takes its value from in a scenario.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -58,7 +64,7 @@ pub(crate) fn case_pmf(
     let n_max = target.observed_days as usize;
     let offset = f64::from(target.observed_days).ln();
     let parameters = model.glm.draw_parameters(rng, draws);
-    let mut mixture = PmfMixture::new(n_max);
+    let mut mixture = PmfMixture::with_tail_cut(n_max, TAIL_CUT);
     let mut x = vec![0.0; sources.len()];
     for (d, draw) in parameters.iter().enumerate() {
         let past = scenario_rows[d % scenario_rows.len()];
