@@ -11,8 +11,8 @@
 use rand::Rng;
 
 use super::HindcastError;
-use crate::fit::{DesignRow, GaugeModel, Predictor};
-use crate::glm::PmfMixture;
+use crate::fit::{DesignRow, Predictor};
+use crate::glm::{FittedGlm, PmfMixture};
 
 /// Share of a component's mass below which its upper tail is cut (far below any score's
 /// resolution: the log score floors probabilities at a far larger value).
@@ -27,14 +27,13 @@ pub(crate) enum Source {
     Resampled(usize),
 }
 
-/// Sources of `model`'s predictors, in the model's order, given the design's columns.
+/// Sources of a model's `predictors` (in its coefficient order), given the design's columns.
 pub(crate) fn sources(
-    model: &GaugeModel,
+    predictors: &[Predictor],
     columns: &[Predictor],
     known: impl Fn(Predictor) -> bool,
 ) -> Vec<Source> {
-    model
-        .predictors
+    predictors
         .iter()
         .map(|&p| {
             let column = columns
@@ -50,11 +49,11 @@ pub(crate) fn sources(
         .collect()
 }
 
-/// The predictive pmf (index = days, `0..=observed days`) of `target` under `model`;
+/// The predictive pmf (index = days, `0..=observed days`) of `target` under the fit `glm`;
 /// `scenario_rows[d]` is the training season that scenario `d` resamples (cycled when
 /// shorter than `draws`).
 pub(crate) fn case_pmf(
-    model: &GaugeModel,
+    glm: &FittedGlm,
     sources: &[Source],
     target: &DesignRow,
     scenario_rows: &[&DesignRow],
@@ -63,7 +62,7 @@ pub(crate) fn case_pmf(
 ) -> Result<Vec<f64>, HindcastError> {
     let n_max = target.observed_days as usize;
     let offset = f64::from(target.observed_days).ln();
-    let parameters = model.glm.draw_parameters(rng, draws);
+    let parameters = glm.draw_parameters(rng, draws);
     let mut mixture = PmfMixture::with_tail_cut(n_max, TAIL_CUT);
     let mut x = vec![0.0; sources.len()];
     for (d, draw) in parameters.iter().enumerate() {
