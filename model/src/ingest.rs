@@ -474,26 +474,14 @@ fn parse_rows(
     source_name: &str,
     mut sink: impl FnMut(Row) -> Result<(), IngestError>,
 ) -> Result<(), IngestError> {
-    let mut line_number = 0u64;
-    let mut columns: Option<usize> = None;
-    let mut parser = RowParser {
-        options,
-        source_name,
-        dates: DateCache::default(),
-    };
-    let mut handle = |line: &[u8]| -> Result<(), IngestError> {
-        line_number += 1;
-        let line = line.strip_suffix(b"\r").unwrap_or(line);
-        let blank = line.first().is_none_or(u8::is_ascii_whitespace)
-            && line.iter().all(u8::is_ascii_whitespace);
-        if blank {
-            return Ok(());
-        }
-        match columns {
-            None => columns = Some(parser.header(line, line_number)?),
-            Some(columns) => sink(parser.row(line, line_number, columns)?)?,
-        }
-        Ok(())
+    let mut lines = LineHandler {
+        parser: RowParser {
+            options,
+            source_name,
+            dates: DateCache::default(),
+        },
+        line_number: 0,
+        columns: None,
     };
     // The start of a line whose end has not been read yet.
     let mut carry: Vec<u8> = Vec::new();
@@ -520,26 +508,57 @@ fn parse_rows(
                 continue;
             };
             carry.extend_from_slice(&chunk[..end]);
-            handle(&carry)?;
+            lines.handle(&carry, &mut sink)?;
             carry.clear();
             start = end + 1;
         }
         while let Some(end) = find_newline(&chunk[start..]) {
-            handle(&chunk[start..start + end])?;
+            lines.handle(&chunk[start..start + end], &mut sink)?;
             start += end + 1;
         }
         carry.extend_from_slice(&chunk[start..]);
         reader.consume(len);
     }
     if !carry.is_empty() {
-        handle(&carry)?;
+        lines.handle(&carry, &mut sink)?;
     }
-    if columns.is_none() {
+    if lines.columns.is_none() {
         return Err(IngestError::Empty {
             source_name: source_name.to_owned(),
         });
     }
     Ok(())
+}
+
+/// Numbers the lines, reads the header, and parses every later non-blank line into a row.
+struct LineHandler<'a> {
+    parser: RowParser<'a>,
+    line_number: u64,
+    /// The header's column count, once the header is read.
+    columns: Option<usize>,
+}
+
+impl LineHandler<'_> {
+    /// Handles one line (without its `\n`).
+    #[inline(always)]
+    fn handle(
+        &mut self,
+        line: &[u8],
+        sink: &mut impl FnMut(Row) -> Result<(), IngestError>,
+    ) -> Result<(), IngestError> {
+        self.line_number += 1;
+        let line = line.strip_suffix(b"\r").unwrap_or(line);
+        let blank = line.first().is_none_or(u8::is_ascii_whitespace)
+            && line.iter().all(u8::is_ascii_whitespace);
+        if blank {
+            return Ok(());
+        }
+        match self.columns {
+            None => self.columns = Some(self.parser.header(line, self.line_number)?),
+            Some(columns) => sink(self.parser.row(line, self.line_number, columns)?)?,
+        }
+        Ok(())
+    }
 }
 
 /// Finds the first `\n`, eight bytes at a time: a word XOR the pattern has a zero byte where
