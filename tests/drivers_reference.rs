@@ -513,6 +513,16 @@ fn forecast_files_are_validated() {
         let msg = forecast_text(text).unwrap_err().to_string();
         assert!(msg.contains(needle), "{text}: {msg}");
     }
+    // A free-text `note` is kept; any other unknown field is refused.
+    let noted = forecast_text(
+        r#"{"season":"2026-DJF","issued":"2026-11-15","note":"invented","probabilities":{"la_nina":0.5,"neutral":0.5,"el_nino":0.0}}"#,
+    )
+    .unwrap();
+    assert_eq!(noted.note.as_deref(), Some("invented"));
+    assert!(forecast_text(
+        r#"{"season":"2026-DJF","issued":"2026-11-15","remark":"x","probabilities":{"la_nina":0.5,"neutral":0.5,"el_nino":0.0}}"#
+    )
+    .is_err());
     // Within 1e-6 of 1 is accepted.
     assert!(forecast_text(
         r#"{"season":"2026-DJF","issued":"2026-11-15","probabilities":{"la_nina":0.3333333,"neutral":0.3333333,"el_nino":0.3333333}}"#

@@ -221,6 +221,7 @@ fn pooled_enso_weights_each_model_equally_in_the_outlook() {
         prepared.drivers.enso_forecast = Some(EnsoForecast {
             season: target.clone(),
             issued,
+            note: None,
             content: ForecastContent::Members(
                 models
                     .into_iter()
@@ -302,6 +303,7 @@ fn category_probability_forecasts_draw_enso_from_past_seasons_of_the_category() 
         prepared.drivers.enso_forecast = Some(EnsoForecast {
             season: target.clone(),
             issued,
+            note: None,
             content: ForecastContent::Probabilities(CategoryProbabilities {
                 la_nina,
                 neutral: 1.0 - la_nina - el_nino,

@@ -218,42 +218,7 @@ pub enum Family {
     Auto,
 }
 
-/// A seasonal predictor.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Predictor {
-    /// ENSO index (needs `drivers.enso`).
-    Enso,
-    /// MJO active days in chosen RMM phases (needs `drivers.rmm`).
-    Mjo,
-    /// Along-shore wind (needs `drivers.wind`).
-    Wind,
-    /// Mean sea level trend, from the level record.
-    SeaLevel,
-    /// Astronomical tide, from the level record.
-    Tide,
-}
-
-impl Predictor {
-    /// The name used in the TOML.
-    pub fn name(self) -> &'static str {
-        match self {
-            Predictor::Enso => "enso",
-            Predictor::Mjo => "mjo",
-            Predictor::Wind => "wind",
-            Predictor::SeaLevel => "sea_level",
-            Predictor::Tide => "tide",
-        }
-    }
-
-    const ALL: [Predictor; 5] = [
-        Predictor::Enso,
-        Predictor::Mjo,
-        Predictor::Wind,
-        Predictor::SeaLevel,
-        Predictor::Tide,
-    ];
-}
+pub use crate::predictor::Predictor;
 
 /// Which season's ENSO value is used.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
@@ -608,7 +573,7 @@ impl Checker<'_> {
                 for name in names {
                     let p = Predictor::ALL
                         .into_iter()
-                        .find(|p| p.name() == name)
+                        .find(|p| p.as_str() == name)
                         .ok_or_else(|| {
                             self.invalid(
                                 "model.predictors",

@@ -14,10 +14,10 @@
 //!
 //! Speed: common time shapes are computed arithmetically (chrono handles the rest), plain
 //! decimals take an exact fast path (the standard parser handles the rest), and lines are
-//! split in place in a reused buffer; see `model/benches/ingest.rs`.
+//! split in place in the reader's own buffer; see `model/benches/ingest.rs`.
 
 use std::collections::BTreeMap;
-use std::io::{BufRead, Read};
+use std::io::BufRead;
 
 use chrono::{DateTime, FixedOffset};
 use flate2::bufread::MultiGzDecoder;
@@ -443,6 +443,8 @@ fn for_each_row<R: BufRead>(
     source_name: &str,
     sink: impl FnMut(Row) -> Result<(), IngestError>,
 ) -> Result<(), IngestError> {
+    /// Decompressed bytes are parsed in chunks of this size.
+    const GZIP_CHUNK: usize = 256 * 1024;
     let io_error = |error| IngestError::Io {
         source_name: source_name.to_owned(),
         error,
@@ -453,80 +455,110 @@ fn for_each_row<R: BufRead>(
         .starts_with(&[0x1f, 0x8b]);
     if is_gzip {
         let decoder = MultiGzDecoder::new(reader);
-        parse_rows(decoder, options, source_name, sink)
+        parse_rows(
+            std::io::BufReader::with_capacity(GZIP_CHUNK, decoder),
+            options,
+            source_name,
+            sink,
+        )
     } else {
         parse_rows(reader, options, source_name, sink)
     }
 }
 
-/// The line loop: a reused buffer, complete lines parsed in place, the partial last line
-/// carried over to the next read.
+/// The line loop: complete lines are parsed in place in the reader's own buffer (no copy);
+/// only a line split across two reads is assembled in a small carry buffer.
 fn parse_rows(
-    mut reader: impl Read,
+    mut reader: impl BufRead,
     options: &IngestOptions,
     source_name: &str,
     mut sink: impl FnMut(Row) -> Result<(), IngestError>,
 ) -> Result<(), IngestError> {
-    const CHUNK: usize = 256 * 1024;
-    let mut buffer = vec![0u8; CHUNK];
-    let mut filled = 0;
-    let mut line_number = 0u64;
-    let mut columns: Option<usize> = None;
-    let mut at_eof = false;
-    let mut parser = RowParser {
-        options,
-        source_name,
-        dates: DateCache::default(),
+    let mut lines = LineHandler {
+        parser: RowParser {
+            options,
+            source_name,
+            dates: DateCache::default(),
+        },
+        line_number: 0,
+        columns: None,
     };
-    while !at_eof {
-        if filled == buffer.len() {
-            // A single line longer than the buffer: grow it.
-            buffer.resize(buffer.len() * 2, 0);
-        }
-        let n = loop {
-            match reader.read(&mut buffer[filled..]) {
-                Ok(n) => break n,
-                Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
-                Err(error) => {
-                    return Err(IngestError::Io {
-                        source_name: source_name.to_owned(),
-                        error,
-                    });
-                }
+    // The start of a line whose end has not been read yet.
+    let mut carry: Vec<u8> = Vec::new();
+    loop {
+        let chunk = match reader.fill_buf() {
+            Ok(chunk) => chunk,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+            Err(error) => {
+                return Err(IngestError::Io {
+                    source_name: source_name.to_owned(),
+                    error,
+                });
             }
         };
-        filled += n;
-        at_eof = n == 0;
-        let mut start = 0;
-        loop {
-            let rest = &buffer[start..filled];
-            let (line, next) = match find_newline(rest) {
-                Some(end) => (&rest[..end], start + end + 1),
-                None if at_eof && !rest.is_empty() => (rest, filled),
-                None => break,
-            };
-            start = next;
-            line_number += 1;
-            let line = line.strip_suffix(b"\r").unwrap_or(line);
-            let blank = line.first().is_none_or(u8::is_ascii_whitespace)
-                && line.iter().all(u8::is_ascii_whitespace);
-            if blank {
-                continue;
-            }
-            match columns {
-                None => columns = Some(parser.header(line, line_number)?),
-                Some(columns) => sink(parser.row(line, line_number, columns)?)?,
-            }
+        if chunk.is_empty() {
+            break;
         }
-        buffer.copy_within(start..filled, 0);
-        filled -= start;
+        let len = chunk.len();
+        let mut start = 0;
+        if !carry.is_empty() {
+            let Some(end) = find_newline(chunk) else {
+                carry.extend_from_slice(chunk);
+                reader.consume(len);
+                continue;
+            };
+            carry.extend_from_slice(&chunk[..end]);
+            lines.handle(&carry, &mut sink)?;
+            carry.clear();
+            start = end + 1;
+        }
+        while let Some(end) = find_newline(&chunk[start..]) {
+            lines.handle(&chunk[start..start + end], &mut sink)?;
+            start += end + 1;
+        }
+        carry.extend_from_slice(&chunk[start..]);
+        reader.consume(len);
     }
-    if columns.is_none() {
+    if !carry.is_empty() {
+        lines.handle(&carry, &mut sink)?;
+    }
+    if lines.columns.is_none() {
         return Err(IngestError::Empty {
             source_name: source_name.to_owned(),
         });
     }
     Ok(())
+}
+
+/// Numbers the lines, reads the header, and parses every later non-blank line into a row.
+struct LineHandler<'a> {
+    parser: RowParser<'a>,
+    line_number: u64,
+    /// The header's column count, once the header is read.
+    columns: Option<usize>,
+}
+
+impl LineHandler<'_> {
+    /// Handles one line (without its `\n`).
+    #[inline(always)]
+    fn handle(
+        &mut self,
+        line: &[u8],
+        sink: &mut impl FnMut(Row) -> Result<(), IngestError>,
+    ) -> Result<(), IngestError> {
+        self.line_number += 1;
+        let line = line.strip_suffix(b"\r").unwrap_or(line);
+        let blank = line.first().is_none_or(u8::is_ascii_whitespace)
+            && line.iter().all(u8::is_ascii_whitespace);
+        if blank {
+            return Ok(());
+        }
+        match self.columns {
+            None => self.columns = Some(self.parser.header(line, self.line_number)?),
+            Some(columns) => sink(self.parser.row(line, self.line_number, columns)?)?,
+        }
+        Ok(())
+    }
 }
 
 /// Finds the first `\n`, eight bytes at a time: a word XOR the pattern has a zero byte where
@@ -1147,6 +1179,29 @@ mod tests {
             read("", &opts()).unwrap_err(),
             IngestError::Empty { .. }
         ));
+    }
+
+    #[test]
+    fn lines_split_across_reads_parse_as_whole_lines() {
+        // The loop parses lines in the reader's buffer and assembles a line cut by a read
+        // boundary in a carry buffer; every buffer size, down to one byte, must read the same
+        // rows and name the same line in an error as one read of the whole text.
+        let text = "\u{feff}time,level\r\n2026-01-01T00:00:00Z,0.512\r\n\n\
+                    2026-01-01T01:00:00Z,\n2026-01-01T07:00:00+05:00,-1.25\n\
+                    2026-01-01T03:00:00Z,NaN\n2026-01-01T04:00:00Z,0.75";
+        let whole = read(text, &opts()).unwrap();
+        assert_eq!(whole.levels_m, vec![0.512, -1.25, 0.75]);
+        let bad = "time,level\n2026-01-01T00:00:00Z,0.5\n\n2026-01-01T01:00:00Z,x1\n";
+        let whole_error = read(bad, &opts()).unwrap_err().to_string();
+        assert!(whole_error.contains("line 4"), "{whole_error}");
+        for capacity in 1..=text.len() + 1 {
+            let reader = std::io::BufReader::with_capacity(capacity, text.as_bytes());
+            let split = read_levels(reader, &opts(), "test.csv").unwrap();
+            assert_eq!(split, whole, "buffer of {capacity} bytes");
+            let reader = std::io::BufReader::with_capacity(capacity, bad.as_bytes());
+            let error = read_levels(reader, &opts(), "test.csv").unwrap_err();
+            assert_eq!(error.to_string(), whole_error, "buffer of {capacity} bytes");
+        }
     }
 
     #[test]

@@ -20,6 +20,7 @@ pub mod glm;
 pub mod hindcast;
 pub mod ingest;
 pub mod outlook;
+pub mod predictor;
 pub mod season;
 pub mod tide;
 pub mod verify;

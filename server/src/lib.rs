@@ -21,6 +21,7 @@ pub mod routes;
 pub mod state;
 pub mod store;
 pub mod upload;
+pub mod web;
 
 use std::future::Future;
 use std::sync::Arc;

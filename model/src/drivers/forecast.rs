@@ -103,6 +103,8 @@ pub struct EnsoForecast {
     pub issued: NaiveDate,
     /// Members or probabilities.
     pub content: ForecastContent,
+    /// An optional free-text note from the issuer (top-level `note`).
+    pub note: Option<String>,
 }
 
 #[derive(Deserialize)]
@@ -110,6 +112,8 @@ pub struct EnsoForecast {
 struct RawForecast {
     season: String,
     issued: String,
+    #[serde(default)]
+    note: Option<String>,
     models: Option<Vec<RawModel>>,
     probabilities: Option<RawProbabilities>,
 }
@@ -177,6 +181,7 @@ impl EnsoForecast {
             season,
             issued,
             content,
+            note: raw.note,
         })
     }
 

@@ -4,7 +4,7 @@
 
 use serde::Serialize;
 
-use super::predictor::Predictor;
+use crate::predictor::Predictor;
 use crate::season::Season;
 
 /// A driver's value for one season, or why it is missing.

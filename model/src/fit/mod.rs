@@ -11,15 +11,14 @@
 
 mod design;
 mod model;
-mod predictor;
 mod prepare;
 
+pub use crate::predictor::{Predictor, UnknownPredictor};
 pub use design::{Design, DesignRow, DriverValue, LeaveOutReason, LeftOut, SeasonData};
 pub use model::{CoefficientReport, FitPeriod, GaugeModel, MIN_SEASONS, fit_design};
-pub use predictor::{Predictor, UnknownPredictor};
 pub use prepare::{
     GaugeDrivers, PrepareError, PreparedGauge, TIDE_MARGIN_M, TidalDriver, driver_of, load_drivers,
-    predictor_of, predictor_settings, prepare, prepare_from, tidal_driver,
+    predictor_settings, prepare, prepare_from, tidal_driver,
 };
 
 use crate::glm::FamilyRequest;

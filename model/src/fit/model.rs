@@ -5,8 +5,8 @@ use serde::Serialize;
 
 use super::FitError;
 use super::design::{Design, LeftOut};
-use super::predictor::Predictor;
 use crate::glm::{self, FamilyChoice, FamilyRequest, FittedGlm, GlmError, GlmSpec};
+use crate::predictor::Predictor;
 
 /// One coefficient of a gauge model, with its rate ratio when it belongs to a driver.
 #[derive(Debug, Clone, PartialEq, Serialize)]

@@ -9,13 +9,13 @@ use std::path::Path;
 use chrono::NaiveDate;
 
 use super::design::{DriverValue, SeasonData};
-use super::predictor::Predictor;
 use crate::drivers::{
     self, Coast, Driver, DriverInputs, EnsoForecast, EnsoSeries, MonthlyMeanLevel, PhaseSet,
     PredictorSettings, RmmSeries, SeaLevelSource, SeasonPredictors, SeasonalCycle, TrendShape,
     WindSeries, WindStatistic,
 };
 use crate::gauge::{self, GaugeConfig, GaugeRecord};
+use crate::predictor::Predictor;
 use crate::season::Season;
 use crate::tide::risk::{RiskConfig, RiskParams};
 use crate::tide::{AnalysisParams, TideModel};
@@ -171,15 +171,11 @@ pub fn load_drivers(
                 path: name(p),
                 error,
             })?;
-            let (text, note) = split_forecast_note(&text);
-            if let Some(note) = note {
+            let forecast = EnsoForecast::parse(text.as_bytes(), &name(p), &config.seasons.specs)?;
+            if let Some(note) = &forecast.note {
                 notes.push(format!("ENSO forecast note: {note}"));
             }
-            Some(EnsoForecast::parse(
-                text.as_bytes(),
-                &name(p),
-                &config.seasons.specs,
-            )?)
+            Some(forecast)
         }
         None => None,
     };
@@ -197,7 +193,7 @@ pub fn load_drivers(
     let sea_level = drivers::fit_trend(&months, TrendShape::Linear, SeasonalCycle::default())
         .ok()
         .map(SeaLevelSource::Fitted);
-    let tide = if config.model.predictors.contains(&gauge::Predictor::Tide) {
+    let tide = if config.model.predictors.contains(&Predictor::Tide) {
         let series = gauge::load_levels(config)?;
         Some(tidal_driver(config, &series.times, &series.levels_m)?)
     } else {
@@ -212,23 +208,6 @@ pub fn load_drivers(
         tide,
         notes,
     })
-}
-
-/// Splits a free-text top-level `"note"` off an ENSO forecast JSON (the demo's forecast
-/// carries one; the forecast parser accepts only the documented fields). Text without a
-/// note, or that is not a JSON object, is returned unchanged for the parser to judge, so its
-/// error positions stay those of the file.
-fn split_forecast_note(text: &str) -> (std::borrow::Cow<'_, str>, Option<String>) {
-    let Ok(serde_json::Value::Object(mut object)) = serde_json::from_str(text) else {
-        return (text.into(), None);
-    };
-    match object.remove("note") {
-        Some(serde_json::Value::String(note)) => {
-            let rest = serde_json::Value::Object(object).to_string();
-            (rest.into(), Some(note))
-        }
-        _ => (text.into(), None),
-    }
 }
 
 /// The tidal driver from a gauge's readings (times in unix seconds, levels in metres): a
@@ -280,17 +259,6 @@ pub fn predictor_settings(config: &GaugeConfig) -> Result<PredictorSettings, Pre
         coast: Coast::new(config.coast_orientation_deg, config.latitude).ok(),
         flood_threshold_m: config.flood_threshold_m,
     })
-}
-
-/// The model's predictor for a gauge TOML predictor.
-pub fn predictor_of(p: gauge::Predictor) -> Predictor {
-    match p {
-        gauge::Predictor::Enso => Predictor::Enso,
-        gauge::Predictor::Mjo => Predictor::Mjo,
-        gauge::Predictor::Wind => Predictor::Wind,
-        gauge::Predictor::SeaLevel => Predictor::SeaLevel,
-        gauge::Predictor::Tide => Predictor::Tide,
-    }
 }
 
 /// The drivers module's driver for a model predictor (`None` for the tide, which the tide
@@ -414,12 +382,7 @@ fn upcoming_seasons(config: &GaugeConfig, last: NaiveDate, years: i32) -> Vec<Se
 impl PreparedGauge {
     /// The model predictors the gauge's TOML asks for.
     pub fn requested_predictors(&self) -> Vec<Predictor> {
-        self.config
-            .model
-            .predictors
-            .iter()
-            .map(|&p| predictor_of(p))
-            .collect()
+        self.config.model.predictors.clone()
     }
 
     /// The tidal driver of `season`: from the record's seasons or the precomputed upcoming

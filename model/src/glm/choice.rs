@@ -62,13 +62,50 @@ pub struct FamilyChoice {
 
 /// Fits the requested family to validated data.
 pub fn fit(data: &GlmData, request: FamilyRequest) -> Result<FittedGlm, GlmError> {
-    let poisson_irls = fit_poisson_irls(data)?;
-    let poisson =
-        || FittedGlm::from_irls(data, poisson_irls.clone(), None, poisson_irls.iterations);
+    let start: Vec<f64> = data.response().iter().map(|y| y + 0.1).collect();
+    fit_starting(data, request, &start, None)
+}
+
+/// [`fit`] with IRLS starting from the means `start` and, when `theta_start` is given, the
+/// theta iteration starting from it. A cold fit (no theta) fits Poisson first and starts the
+/// negative binomial from its means; a warm negative-binomial request starts from `start`
+/// directly and fits Poisson only if theta runs to infinity.
+pub(super) fn fit_starting(
+    data: &GlmData,
+    request: FamilyRequest,
+    start: &[f64],
+    theta_start: Option<f64>,
+) -> Result<FittedGlm, GlmError> {
+    let poisson_irls = |start: &[f64]| {
+        irls(
+            data.design(),
+            data.response(),
+            data.offset(),
+            Variance::Poisson,
+            start,
+        )
+    };
+    let poisson_fit = |fit: IrlsFit| -> Result<FittedGlm, GlmError> {
+        let iterations = fit.iterations;
+        FittedGlm::from_irls(data, fit, None, iterations)
+    };
+    let warm_negbin = request == FamilyRequest::Negbin && theta_start.is_some();
+    let poisson = if warm_negbin {
+        None
+    } else {
+        Some(poisson_irls(start)?)
+    };
     if request == FamilyRequest::Poisson {
-        return poisson();
+        return poisson_fit(poisson.expect("a Poisson request always fits Poisson first"));
     }
-    let negbin = match fit_negbin(data.design(), data.response(), data.offset(), &poisson_irls)? {
+    let negbin_start = poisson.as_ref().map_or(start, |p| p.mu.as_slice());
+    let negbin = match fit_negbin(
+        data.design(),
+        data.response(),
+        data.offset(),
+        negbin_start,
+        theta_start,
+    )? {
         NegbinOutcome::Fitted(nb) => Some(FittedGlm::from_irls(
             data,
             nb.irls,
@@ -80,33 +117,24 @@ pub fn fit(data: &GlmData, request: FamilyRequest) -> Result<FittedGlm, GlmError
         )?),
         NegbinOutcome::ThetaInfinite => None,
     };
-    match (request, negbin) {
-        (FamilyRequest::Negbin, Some(nb)) => Ok(nb),
-        (FamilyRequest::Negbin, None) => {
-            let mut fit = poisson()?;
-            fit.notes.push(THETA_INFINITE_NOTE.to_string());
-            Ok(fit)
-        }
-        (_, negbin) => {
-            let poisson = poisson()?;
-            Ok(choose(poisson, negbin))
-        }
+    let negbin = match (request, negbin) {
+        (FamilyRequest::Negbin, Some(nb)) => return Ok(nb),
+        (_, negbin) => negbin,
+    };
+    let poisson = poisson_fit(match poisson {
+        Some(p) => p,
+        None => poisson_irls(start)?,
+    })?;
+    if request == FamilyRequest::Negbin {
+        let mut fit = poisson;
+        fit.notes.push(THETA_INFINITE_NOTE.to_string());
+        return Ok(fit);
     }
+    Ok(choose(poisson, negbin))
 }
 
 const THETA_INFINITE_NOTE: &str = "the negative-binomial theta ran to infinity (no \
     overdispersion beyond Poisson), so the Poisson fit is reported";
-
-fn fit_poisson_irls(data: &GlmData) -> Result<IrlsFit, GlmError> {
-    let start: Vec<f64> = data.response().iter().map(|y| y + 0.1).collect();
-    irls(
-        data.design(),
-        data.response(),
-        data.offset(),
-        Variance::Poisson,
-        &start,
-    )
-}
 
 /// Picks between the two fits by the boundary-corrected likelihood-ratio test.
 fn choose(poisson: FittedGlm, negbin: Option<FittedGlm>) -> FittedGlm {

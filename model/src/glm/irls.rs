@@ -15,6 +15,8 @@ const MAX_ITERATIONS: usize = 100;
 const SEPARATION_MU: f64 = 1e-8;
 /// Largest linear predictor allowed before `exp` is considered an overflow.
 const MAX_ETA: f64 = 600.0;
+/// Largest linear predictor of a usable warm start (the same bound as a fitted mean's).
+pub(super) const MAX_START_ETA: f64 = MAX_ETA;
 
 /// The variance function: Poisson (`Var = mu`) or NB2 at fixed theta
 /// (`Var = mu + mu^2 / theta`).

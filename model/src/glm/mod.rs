@@ -4,7 +4,7 @@
 //!
 //! The flow follows the crate's "unchecked -> checked -> fitted" rule:
 //! [`GlmSpec`] (raw columns) -> [`GlmData`] (validated, standardised, full rank) ->
-//! [`fit`] -> [`FittedGlm`] (coefficients on the original scale, standard errors, deviance,
+//! [`fit`] (or [`fit_from`], warm-started) -> [`FittedGlm`] (coefficients on the original scale, standard errors, deviance,
 //! likelihood, theta) -> [`FittedGlm::predictive`] / [`CountDistribution`].
 //!
 //! Methods:
@@ -37,6 +37,7 @@ mod negbin;
 mod predictive;
 mod special;
 mod table;
+mod warm;
 
 pub use choice::{AUTO_TEST_LEVEL, FamilyChoice, FamilyRequest, fit};
 pub use data::{GlmData, GlmSpec};
@@ -46,6 +47,7 @@ pub use predictive::{
     TruncatedPmf, negbin_pmf, poisson_pmf,
 };
 pub use table::{ColumnSpec, OffsetColumn, TableError, read_table};
+pub use warm::fit_from;
 
 use std::fmt;
 

@@ -155,16 +155,18 @@ pub(super) enum NegbinOutcome {
     ThetaInfinite,
 }
 
-/// Alternates theta at fixed means with IRLS at fixed theta, starting from a Poisson fit.
+/// Alternates theta at fixed means with IRLS at fixed theta, starting from the means
+/// `start` (a Poisson fit's, or a warm start's) and, when given, from `theta_start`.
 pub(super) fn fit_negbin(
     design: &DMatrix<f64>,
     y: &[f64],
     offset: &[f64],
-    poisson: &IrlsFit,
+    start: &[f64],
+    theta_start: Option<f64>,
 ) -> Result<NegbinOutcome, GlmError> {
     let d1 = (2.0 * (y.len() as f64 - design.ncols() as f64).max(1.0)).sqrt();
-    let mut mu = poisson.mu.clone();
-    let mut theta = match theta_ml(y, &mu, None)? {
+    let mut mu = start.to_vec();
+    let mut theta = match theta_ml(y, &mu, theta_start)? {
         ThetaMl::Finite { theta, .. } => theta,
         ThetaMl::Infinite => return Ok(NegbinOutcome::ThetaInfinite),
     };

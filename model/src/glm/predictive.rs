@@ -205,6 +205,42 @@ fn fill_pmf(kernel: Kernel, out: &mut [f64]) -> f64 {
     (1.0 - log_total.exp()).clamp(0.0, 1.0)
 }
 
+/// As [`fill_pmf`], but stops at the first count `k` past the mode where the tail bound
+/// `p_k R / (1 - R)` falls below `tail` times the mass kept so far, `R` bounding every later
+/// ratio `p_{j+1} / p_j` (`j >= k`): the ratio itself for Poisson and for NB2 with
+/// `theta >= 1` (both decrease in `j`), the limit `mu / (mu + theta)` for NB2 with
+/// `theta < 1` (the ratios rise towards it). Returns the truncated mass (beyond `n_max`
+/// or cut) and how many leading entries of `out` were written.
+fn fill_pmf_cut(kernel: Kernel, out: &mut [f64], tail: f64) -> (f64, usize) {
+    let lp0 = kernel.log_p0();
+    if !(lp0 > LOG_SPACE_BELOW) {
+        return (fill_pmf(kernel, out), out.len());
+    }
+    let ratio_limit = match kernel {
+        Kernel::Poisson { .. } => 0.0,
+        Kernel::Negbin { mu, theta } => mu / (mu + theta),
+    };
+    let mut p = lp0.exp();
+    let mut total = 0.0;
+    let mut kept = out.len();
+    for (k, slot) in out.iter_mut().enumerate() {
+        *slot = p;
+        total += p;
+        let ratio = kernel.ratio(k);
+        let bound_ratio = ratio.max(ratio_limit);
+        if bound_ratio < 1.0 && p * bound_ratio < tail * total * (1.0 - bound_ratio) {
+            kept = k + 1;
+            break;
+        }
+        p *= ratio;
+    }
+    if !(total > 1e-290) {
+        return (fill_pmf(kernel, out), out.len());
+    }
+    out[..kept].iter_mut().for_each(|p| *p /= total);
+    ((1.0 - total).max(0.0), kept)
+}
+
 /// An equal-weight mixture of truncated pmfs on `0..=n_max`, built one component at a time
 /// (e.g. driver scenarios x parameter draws).
 #[derive(Debug, Clone, PartialEq)]
@@ -213,6 +249,9 @@ pub struct PmfMixture {
     scratch: Vec<f64>,
     components: usize,
     truncated_mass: f64,
+    /// Upper tails below this share of a component's kept mass are cut (see
+    /// [`PmfMixture::with_tail_cut`]); `None` builds every component out to `n_max`.
+    tail_cut: Option<f64>,
 }
 
 impl PmfMixture {
@@ -223,7 +262,22 @@ impl PmfMixture {
             scratch: vec![0.0; n_max + 1],
             components: 0,
             truncated_mass: 0.0,
+            tail_cut: None,
         }
+    }
+
+    /// An empty mixture on `0..=n_max` whose Poisson and NB2 components stop at the first
+    /// count past the mode beyond which the remaining upper tail is provably below `tail`
+    /// times the component's kept mass (a geometric bound on the ratio of successive
+    /// probabilities); the cut tail is counted as truncated mass and each component is
+    /// renormalised over what is kept, so no pmf value moves by more than `tail` relative.
+    /// A `tail` that is not positive and finite builds whole components, as [`PmfMixture::new`].
+    pub fn with_tail_cut(n_max: usize, tail: f64) -> Self {
+        let mut mixture = Self::new(n_max);
+        if tail > 0.0 && tail.is_finite() {
+            mixture.tail_cut = Some(tail);
+        }
+        mixture
     }
 
     /// Adds a Poisson(mu) component.
@@ -255,10 +309,13 @@ impl PmfMixture {
     }
 
     fn add_kernel(&mut self, kernel: Kernel) {
-        let mass = fill_pmf(kernel, &mut self.scratch);
-        self.sum
+        let (mass, kept) = match self.tail_cut {
+            Some(tail) => fill_pmf_cut(kernel, &mut self.scratch, tail),
+            None => (fill_pmf(kernel, &mut self.scratch), self.scratch.len()),
+        };
+        self.sum[..kept]
             .iter_mut()
-            .zip(&self.scratch)
+            .zip(&self.scratch[..kept])
             .for_each(|(s, p)| *s += p);
         self.components += 1;
         self.truncated_mass += mass;
@@ -513,6 +570,36 @@ mod tests {
             assert!((x - y).abs() < 1e-15);
         }
         assert!(PmfMixture::new(5).finish().is_none());
+        assert!(PmfMixture::with_tail_cut(5, 1e-12).finish().is_none());
         assert!(PmfMixture::new(5).add_negbin(1.0, f64::NAN).is_err());
+    }
+
+    #[test]
+    fn a_tail_cut_mixture_matches_the_whole_one_within_the_cut() {
+        // Poisson and NB2 with theta on both sides of 1, means small and large against n_max.
+        let n_max = 92;
+        let mut whole = PmfMixture::new(n_max);
+        let mut cut = PmfMixture::with_tail_cut(n_max, 1e-12);
+        for &mu in &[0.3, 4.0, 17.5, 60.0, 150.0] {
+            whole.add_poisson(mu).expect("valid");
+            cut.add_poisson(mu).expect("valid");
+            for &theta in &[0.4, 1.0, 3.0, 40.0] {
+                whole.add_negbin(mu, theta).expect("valid");
+                cut.add_negbin(mu, theta).expect("valid");
+            }
+        }
+        let whole = whole.finish().expect("components");
+        let cut = cut.finish().expect("components");
+        assert_eq!(whole.distribution.pmf.len(), cut.distribution.pmf.len());
+        for (a, b) in whole.distribution.pmf.iter().zip(&cut.distribution.pmf) {
+            assert!((a - b).abs() <= 1e-11 * a.max(1e-300) + 1e-15, "{a} vs {b}");
+        }
+        assert!((whole.truncated_mass - cut.truncated_mass).abs() < 1e-11);
+        // A tight mean cuts the pmf short: the entries far in the tail are exactly zero.
+        let mut small = PmfMixture::with_tail_cut(n_max, 1e-12);
+        small.add_poisson(2.0).expect("valid");
+        let small = small.finish().expect("one component");
+        assert_eq!(small.distribution.pmf[40], 0.0);
+        assert!((small.distribution.pmf.iter().sum::<f64>() - 1.0).abs() < 1e-14);
     }
 }

@@ -20,6 +20,7 @@
 
 pub mod baselines;
 mod predict;
+mod refit;
 pub mod schemes;
 pub mod scoring;
 pub mod verdict;
@@ -39,8 +40,8 @@ pub use verdict::{HEADLINE_SCORE, VerdictKind, VerdictReport};
 
 use crate::drivers::EnsoTiming;
 use crate::fit::{
-    Design, DesignRow, FitError, GaugeModel, LeftOut, Predictor, PreparedGauge, SeasonData,
-    family_request, fit_design,
+    Design, DesignRow, FitError, LeftOut, Predictor, PreparedGauge, SeasonData, family_request,
+    fit_design,
 };
 use crate::glm::{Family, FamilyRequest};
 use crate::verify::{Bootstrap, VerifyError};
@@ -397,6 +398,8 @@ struct System {
     kind: ModelKind,
     design: Design,
     family: Family,
+    /// The full-record fit, where every refit starts.
+    start: refit::WarmStart,
 }
 
 /// Hindcasts one season name.
@@ -452,6 +455,7 @@ pub fn hindcast_season(
                 kind,
                 design,
                 family: model.family,
+                start: refit::WarmStart::of(&model),
             }),
             Err(source) if kind == ModelKind::TrendOnly => notes.push(format!(
                 "the trend-only baseline could not be fitted on the full record ({source}), so \
@@ -631,20 +635,21 @@ fn run_scheme(
         pmfs,
     };
     let scored = scoring::score(&set, &kinds, exceed_days)?;
-    let mut skill = scoring::skill(
+    let skill = scoring::skill(
         &scored,
         &kinds,
-        &[ModelKind::Drivers, ModelKind::TrendOnly],
-        ModelKind::Climatology,
+        &[
+            scoring::Comparison {
+                models: &[ModelKind::Drivers, ModelKind::TrendOnly],
+                reference: ModelKind::Climatology,
+            },
+            scoring::Comparison {
+                models: &[ModelKind::Drivers],
+                reference: ModelKind::TrendOnly,
+            },
+        ],
         bootstrap,
     );
-    skill.extend(scoring::skill(
-        &scored,
-        &kinds,
-        &[ModelKind::Drivers],
-        ModelKind::TrendOnly,
-        bootstrap,
-    ));
     report.models = scored.table;
     report.skill = skill;
     let n = report.cases.len();
@@ -703,11 +708,11 @@ fn forecast_case(
             Family::Poisson => FamilyRequest::Poisson,
             Family::Negbin => FamilyRequest::Negbin,
         };
-        let model: GaugeModel = match fit_design(&sub, request) {
+        let model = match refit::refit(&sub, request, &system.start) {
             Ok(m) => m,
             Err(e) => return skip(format!("{:?} refit: {e}", system.kind)),
         };
-        let sources = predict::sources(&model, &design.predictors, known);
+        let sources = predict::sources(&model.predictors, &design.predictors, known);
         let scenario_rows: Vec<&DesignRow> = scenario.iter().map(|&i| &design.rows[i]).collect();
         let mut rng = stream(
             options.seed,
@@ -716,7 +721,7 @@ fn forecast_case(
             system.kind.index() as u64,
         );
         match predict::case_pmf(
-            &model,
+            &model.glm,
             &sources,
             &design.rows[target],
             &scenario_rows,

@@ -4,13 +4,19 @@
 //! time take the season's own value; the others take the value of one training season drawn
 //! at random (the same season for all of them, so MJO and wind stay paired as they
 //! happened). The exposure is the season's observed days, and the distribution is truncated
-//! there, so it is the distribution of the count that was actually observed.
+//! there, so it is the distribution of the count that was actually observed. Each component
+//! is also cut where its upper tail falls below [`TAIL_CUT`] of its mass (and renormalised),
+//! which changes no probability by more than that share and skips the far tail's arithmetic.
 
 use rand::Rng;
 
 use super::HindcastError;
-use crate::fit::{DesignRow, GaugeModel, Predictor};
-use crate::glm::PmfMixture;
+use crate::fit::{DesignRow, Predictor};
+use crate::glm::{FittedGlm, PmfMixture};
+
+/// Share of a component's mass below which its upper tail is cut (far below any score's
+/// resolution: the log score floors probabilities at a far larger value).
+pub(crate) const TAIL_CUT: f64 = 1e-12;
 
 /// Where each of a model's predictors takes its value from in a scenario.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -21,14 +27,13 @@ pub(crate) enum Source {
     Resampled(usize),
 }
 
-/// Sources of `model`'s predictors, in the model's order, given the design's columns.
+/// Sources of a model's `predictors` (in its coefficient order), given the design's columns.
 pub(crate) fn sources(
-    model: &GaugeModel,
+    predictors: &[Predictor],
     columns: &[Predictor],
     known: impl Fn(Predictor) -> bool,
 ) -> Vec<Source> {
-    model
-        .predictors
+    predictors
         .iter()
         .map(|&p| {
             let column = columns
@@ -44,11 +49,11 @@ pub(crate) fn sources(
         .collect()
 }
 
-/// The predictive pmf (index = days, `0..=observed days`) of `target` under `model`;
+/// The predictive pmf (index = days, `0..=observed days`) of `target` under the fit `glm`;
 /// `scenario_rows[d]` is the training season that scenario `d` resamples (cycled when
 /// shorter than `draws`).
 pub(crate) fn case_pmf(
-    model: &GaugeModel,
+    glm: &FittedGlm,
     sources: &[Source],
     target: &DesignRow,
     scenario_rows: &[&DesignRow],
@@ -57,8 +62,8 @@ pub(crate) fn case_pmf(
 ) -> Result<Vec<f64>, HindcastError> {
     let n_max = target.observed_days as usize;
     let offset = f64::from(target.observed_days).ln();
-    let parameters = model.glm.draw_parameters(rng, draws);
-    let mut mixture = PmfMixture::new(n_max);
+    let parameters = glm.draw_parameters(rng, draws);
+    let mut mixture = PmfMixture::with_tail_cut(n_max, TAIL_CUT);
     let mut x = vec![0.0; sources.len()];
     for (d, draw) in parameters.iter().enumerate() {
         let past = scenario_rows[d % scenario_rows.len()];

@@ -11,8 +11,8 @@ use super::HindcastError;
 use super::baselines::ModelKind;
 use crate::glm::Family;
 use crate::verify::{
-    self, Bootstrap, CaseScores, ContingencyTable, ProbabilityBins, SkillInterval, TercileEdges,
-    UpperDecileEvent,
+    self, Bootstrap, CaseScores, ContingencyTable, ProbabilityBins, ScoreGroup, SkillInterval,
+    TercileEdges, UpperDecileEvent,
 };
 
 /// Width-0.1 probability bins for reliability diagrams and the Brier decomposition (common
@@ -312,46 +312,71 @@ fn named(scores: &CaseScores) -> Vec<(String, &[f64])> {
     out
 }
 
-/// Skill of each of `models` against `reference`, every score, from the same resampled cases.
+/// One comparison: the skill of each of `models` against `reference`.
+pub(crate) struct Comparison<'a> {
+    /// The systems scored.
+    pub models: &'a [ModelKind],
+    /// The system they are scored against.
+    pub reference: ModelKind,
+}
+
+/// The skill of every comparison, every score, all from one set of resampled cases (drawn
+/// once, so the intervals of competing systems and scores are comparable).
 pub(crate) fn skill(
     scored: &Scored,
     kinds: &[(ModelKind, Family)],
-    models: &[ModelKind],
-    reference: ModelKind,
+    comparisons: &[Comparison<'_>],
     bootstrap: &Bootstrap,
 ) -> Vec<SkillReport> {
     let position = |kind: ModelKind| kinds.iter().position(|(k, _)| *k == kind);
-    let Some(r) = position(reference) else {
-        return Vec::new();
-    };
-    let present: Vec<(ModelKind, usize)> = models
-        .iter()
-        .filter_map(|&m| position(m).map(|i| (m, i)))
-        .collect();
-    let reference_arrays = named(&scored.cases[r]);
-    let model_arrays: Vec<Vec<(String, &[f64])>> = present
-        .iter()
-        .map(|&(_, i)| named(&scored.cases[i]))
-        .collect();
-    let mut reports: Vec<SkillReport> = present
-        .iter()
-        .map(|&(model, _)| SkillReport {
+    let mut reports: Vec<SkillReport> = Vec::new();
+    // Per group (one per comparison and score): its name, the reports it fills, its arrays.
+    let mut names: Vec<(String, std::ops::Range<usize>)> = Vec::new();
+    let mut arrays: Vec<(&[f64], Vec<&[f64]>)> = Vec::new();
+    for comparison in comparisons {
+        let Some(r) = position(comparison.reference) else {
+            continue;
+        };
+        let present: Vec<(ModelKind, usize)> = comparison
+            .models
+            .iter()
+            .filter_map(|&m| position(m).map(|i| (m, i)))
+            .collect();
+        let first = reports.len();
+        reports.extend(present.iter().map(|&(model, _)| SkillReport {
             model,
-            reference,
+            reference: comparison.reference,
             resamples: bootstrap.resamples(),
             scores: Vec::new(),
+        }));
+        let model_arrays: Vec<Vec<(String, &[f64])>> = present
+            .iter()
+            .map(|&(_, i)| named(&scored.cases[i]))
+            .collect();
+        for (s, (name, reference_scores)) in named(&scored.cases[r]).into_iter().enumerate() {
+            let forecasts: Vec<&[f64]> = model_arrays.iter().map(|a| a[s].1).collect();
+            names.push((name, first..reports.len()));
+            arrays.push((reference_scores, forecasts));
+        }
+    }
+    let groups: Vec<ScoreGroup<'_>> = arrays
+        .iter()
+        .map(|(reference, forecasts)| ScoreGroup {
+            reference,
+            forecasts,
         })
         .collect();
-    for (s, (name, reference_scores)) in reference_arrays.iter().enumerate() {
-        let forecasts: Vec<&[f64]> = model_arrays.iter().map(|a| a[s].1).collect();
-        match bootstrap.skill_intervals(reference_scores, &forecasts) {
+    let results = bootstrap.skill_intervals_many(&groups);
+    for ((name, range), result) in names.into_iter().zip(results) {
+        let targets = &mut reports[range];
+        match result {
             Ok(intervals) => {
-                for (report, interval) in reports.iter_mut().zip(intervals) {
-                    report.scores.push(entry(name, &interval));
+                for (report, interval) in targets.iter_mut().zip(intervals) {
+                    report.scores.push(entry(&name, &interval));
                 }
             }
             Err(e) => {
-                for report in &mut reports {
+                for report in targets {
                     report.scores.push(SkillEntry {
                         score: name.clone(),
                         estimate: None,

@@ -80,50 +80,97 @@ impl Bootstrap {
         reference: &[f64],
         forecasts: &[&[f64]],
     ) -> Result<Vec<SkillInterval>, VerifyError> {
-        let n = reference.len();
-        if n == 0 {
-            return Err(VerifyError::NoCases {
-                what: "bootstrap skill interval",
-            });
-        }
-        check_finite(reference)?;
-        for forecast in forecasts {
-            if forecast.len() != n {
-                return Err(VerifyError::LengthMismatch {
-                    what: "bootstrap skill interval",
-                    left: forecast.len(),
-                    right: n,
-                });
-            }
-            check_finite(forecast)?;
-        }
-        let reference_mean = mean(reference);
-        let estimates = forecasts
-            .iter()
-            .map(|f| skill_score(mean(f), reference_mean))
-            .collect::<Result<Vec<_>, _>>()?;
+        let estimates = check_group(reference, forecasts)?;
+        let resamples = self.resample_cases(reference.len());
+        Ok(resamples.intervals(reference, forecasts, estimates))
+    }
 
-        let mut rng = ChaCha8Rng::seed_from_u64(self.seed);
-        let mut skills = vec![Vec::with_capacity(self.resamples); forecasts.len()];
-        let mut sums = vec![0.0; forecasts.len()];
-        for _ in 0..self.resamples {
-            let mut reference_sum = 0.0;
-            sums.iter_mut().for_each(|s| *s = 0.0);
-            for _ in 0..n {
-                let case = rng.gen_range(0..n);
-                reference_sum += reference[case];
-                for (sum, forecast) in sums.iter_mut().zip(forecasts) {
-                    *sum += forecast[case];
+    /// Skill intervals of many groups of per-case scores, each a reference with the
+    /// forecasts scored against it (e.g. one group per score), all from one set of resampled
+    /// case indices drawn once. Each group's intervals equal those of
+    /// [`Bootstrap::skill_intervals`] on that group alone: both draw the same indices from
+    /// the same seed.
+    ///
+    /// Each group answers on its own; a group fails as [`Bootstrap::skill_intervals`] does,
+    /// and also when its case count differs from the first group's.
+    pub fn skill_intervals_many(
+        &self,
+        groups: &[ScoreGroup<'_>],
+    ) -> Vec<Result<Vec<SkillInterval>, VerifyError>> {
+        let Some(first) = groups.first() else {
+            return Vec::new();
+        };
+        let n = first.reference.len();
+        let mut resamples: Option<Resamples> = None;
+        groups
+            .iter()
+            .map(|group| {
+                if group.reference.len() != n {
+                    return Err(VerifyError::LengthMismatch {
+                        what: "bootstrap skill interval groups",
+                        left: group.reference.len(),
+                        right: n,
+                    });
                 }
-            }
-            for (skill, &sum) in skills.iter_mut().zip(&sums) {
-                skill.push(resampled_skill(sum, reference_sum));
-            }
+                let estimates = check_group(group.reference, group.forecasts)?;
+                let drawn = resamples.get_or_insert_with(|| self.resample_cases(n));
+                Ok(drawn.intervals(group.reference, group.forecasts, estimates))
+            })
+            .collect()
+    }
+
+    /// The case indices of every resample of `n` cases, in the order the seeded generator
+    /// draws them (resample by resample, case by case).
+    fn resample_cases(&self, n: usize) -> Resamples {
+        let mut rng = ChaCha8Rng::seed_from_u64(self.seed);
+        let indices = (0..self.resamples * n)
+            .map(|_| rng.gen_range(0..n))
+            .collect();
+        Resamples {
+            cases: n,
+            indices,
+            resamples: self.resamples,
         }
-        Ok(skills
-            .into_iter()
+    }
+}
+
+/// One group for [`Bootstrap::skill_intervals_many`]: per-case scores of a reference and of
+/// the forecasts scored against it (all negatively oriented, paired case by case).
+#[derive(Debug, Clone, Copy)]
+pub struct ScoreGroup<'a> {
+    /// The reference's per-case scores.
+    pub reference: &'a [f64],
+    /// Each forecast's per-case scores.
+    pub forecasts: &'a [&'a [f64]],
+}
+
+/// Resampled case indices, drawn once and shared by every score evaluated from them.
+struct Resamples {
+    cases: usize,
+    /// `resamples * cases` indices; resample `r` is `indices[r * cases..(r + 1) * cases]`.
+    indices: Vec<usize>,
+    resamples: usize,
+}
+
+impl Resamples {
+    /// Percentile intervals of checked, equally long scores.
+    fn intervals(
+        &self,
+        reference: &[f64],
+        forecasts: &[&[f64]],
+        estimates: Vec<f64>,
+    ) -> Vec<SkillInterval> {
+        let reference_sums = self.sums(reference);
+        forecasts
+            .iter()
             .zip(estimates)
-            .map(|(mut resampled, estimate)| {
+            .map(|(forecast, estimate)| {
+                let mut resampled: Vec<f64> = self
+                    .sums(forecast)
+                    .into_iter()
+                    .zip(&reference_sums)
+                    .map(|(sum, &reference_sum)| resampled_skill(sum, reference_sum))
+                    .collect();
                 resampled.sort_by(f64::total_cmp);
                 SkillInterval {
                     estimate,
@@ -132,8 +179,42 @@ impl Bootstrap {
                     resamples: self.resamples,
                 }
             })
-            .collect())
+            .collect()
     }
+
+    /// The sum of `scores` over each resample's cases.
+    fn sums(&self, scores: &[f64]) -> Vec<f64> {
+        self.indices
+            .chunks_exact(self.cases)
+            .map(|cases| cases.iter().map(|&case| scores[case]).sum())
+            .collect()
+    }
+}
+
+/// Checks one reference with its forecasts and returns the skill estimates on all cases.
+fn check_group(reference: &[f64], forecasts: &[&[f64]]) -> Result<Vec<f64>, VerifyError> {
+    let n = reference.len();
+    if n == 0 {
+        return Err(VerifyError::NoCases {
+            what: "bootstrap skill interval",
+        });
+    }
+    check_finite(reference)?;
+    for forecast in forecasts {
+        if forecast.len() != n {
+            return Err(VerifyError::LengthMismatch {
+                what: "bootstrap skill interval",
+                left: forecast.len(),
+                right: n,
+            });
+        }
+        check_finite(forecast)?;
+    }
+    let reference_mean = mean(reference);
+    forecasts
+        .iter()
+        .map(|f| skill_score(mean(f), reference_mean))
+        .collect()
 }
 
 fn check_finite(scores: &[f64]) -> Result<(), VerifyError> {
@@ -283,6 +364,46 @@ mod tests {
             percentile(&[f64::NEG_INFINITY, 1.0], 0.5),
             f64::NEG_INFINITY
         );
+    }
+
+    #[test]
+    fn many_groups_share_indices_and_match_one_group_at_a_time() {
+        let reference: Vec<f64> = (0..45)
+            .map(|i| ((i * 37) % 11) as f64 / 10.0 + 0.1)
+            .collect();
+        let a: Vec<f64> = (0..45).map(|i| ((i * 53) % 13) as f64 / 12.0).collect();
+        let b: Vec<f64> = (0..45).map(|i| ((i * 29) % 7) as f64 / 6.0).collect();
+        let other_reference: Vec<f64> = reference.iter().map(|r| r + 0.2).collect();
+        let boot = Bootstrap::new(1000, 42).expect("enough");
+        let both: [&[f64]; 2] = [&a, &b];
+        let one: [&[f64]; 1] = [&b];
+        let short = [1.0, 2.0];
+        let groups = [
+            ScoreGroup {
+                reference: &reference,
+                forecasts: &both,
+            },
+            ScoreGroup {
+                reference: &short,
+                forecasts: &[],
+            },
+            ScoreGroup {
+                reference: &other_reference,
+                forecasts: &one,
+            },
+        ];
+        let many = boot.skill_intervals_many(&groups);
+        assert_eq!(many.len(), 3);
+        assert_eq!(
+            many[0].as_ref().expect("valid"),
+            &boot.skill_intervals(&reference, &both).expect("valid")
+        );
+        assert!(many[1].is_err(), "a group of another length is refused");
+        assert_eq!(
+            many[2].as_ref().expect("valid"),
+            &boot.skill_intervals(&other_reference, &one).expect("valid")
+        );
+        assert!(boot.skill_intervals_many(&[]).is_empty());
     }
 
     #[test]

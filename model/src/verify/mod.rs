@@ -32,7 +32,7 @@ pub mod sedi;
 pub mod skill;
 pub mod terciles;
 
-pub use bootstrap::{Bootstrap, MIN_RESAMPLES, SkillInterval, Verdict, verdict};
+pub use bootstrap::{Bootstrap, MIN_RESAMPLES, ScoreGroup, SkillInterval, Verdict, verdict};
 pub use brier::{
     BrierDecomposition, brier_case, brier_decomposition, brier_score, exceedance_probability,
 };

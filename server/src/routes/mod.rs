@@ -79,6 +79,7 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
         .merge(health)
         .merge(reads)
         .merge(writes)
+        .merge(crate::web::router())
         .fallback(unknown_path)
         .layer(DefaultBodyLimit::max(MAX_DOCUMENT_BYTES))
         .layer(TimeoutLayer::with_status_code(

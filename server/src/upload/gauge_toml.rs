@@ -1,55 +1,19 @@
 //! The fields of a gauge's TOML the service itself needs (identity, position, threshold,
-//! seasons, the files it names), checked on upload. The full description is read by the
-//! model's gauge loader in the pipeline.
+//! seasons, the files it names), read from the model's own validated
+//! `gauge::GaugeConfig::from_toml_str`: an upload is accepted exactly when the pipeline can
+//! load it.
 
-use serde::Deserialize;
+use std::path::Path;
+
+use tidetally_model::gauge::{GaugeConfig, GaugeError};
 use tidetally_model::season::SeasonSpec;
 
 use super::UploadError;
 
-/// Exceedance thresholds used when the gauge TOML names none.
-const DEFAULT_EXCEED_DAYS: [u32; 3] = [5, 10, 20];
-
-#[derive(Debug, Deserialize)]
-struct RawGauge {
-    id: String,
-    name: String,
-    latitude: f64,
-    longitude: f64,
-    datum: String,
-    flood_threshold_m: f64,
-    utc_offset: String,
-    levels: RawLevels,
-    seasons: Option<RawSeasons>,
-    drivers: Option<DriverFiles>,
-    model: Option<RawModel>,
-}
-
-#[derive(Debug, Deserialize)]
-struct RawLevels {
-    file: String,
-    units: String,
-}
-
-#[derive(Debug, Deserialize)]
-struct RawSeasons {
-    custom: Option<Vec<RawSeasonSpec>>,
-}
-
-#[derive(Debug, Deserialize)]
-struct RawSeasonSpec {
-    name: String,
-    start_month: u32,
-    months: u32,
-}
-
-#[derive(Debug, Deserialize)]
-struct RawModel {
-    exceed_days: Option<Vec<u32>>,
-}
+const WHAT: &str = "gauge TOML";
 
 /// Driver files a gauge names, relative to its TOML.
-#[derive(Debug, Clone, Default, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
 pub struct DriverFiles {
     /// Monthly ENSO CSV.
     pub enso: Option<String>,
@@ -88,120 +52,47 @@ pub struct GaugeMeta {
     pub exceed_days: Vec<u32>,
 }
 
-/// Parses and checks a gauge TOML.
+/// Parses and checks a gauge TOML with the model's gauge loader.
+///
+/// Over HTTP a TOML has no folder: data file names are resolved against an empty base, so
+/// they stay exactly as written (relative to wherever the TOML is later placed).
 pub fn parse_gauge_toml(text: &str) -> Result<GaugeMeta, UploadError> {
-    let doc = |message: String| UploadError::Document {
-        what: "gauge TOML".into(),
-        message,
-    };
-    let raw: RawGauge =
-        toml::from_str(text).map_err(|err| doc(err.to_string().trim_end().replace('\n', " ")))?;
-    let field = |name: &str, message: String| doc(format!("field {name}: {message}"));
-    let id_ok = !raw.id.is_empty()
-        && raw.id.len() <= 64
-        && raw
-            .id
-            .chars()
-            .all(|c| c.is_ascii_lowercase() || c.is_ascii_digit() || c == '-');
-    if !id_ok {
-        return Err(field(
-            "id",
-            format!(
-                "{:?} must be 1 to 64 lowercase letters, digits or '-'",
-                raw.id
-            ),
-        ));
-    }
-    if raw.name.trim().is_empty() {
-        return Err(field("name", "must not be empty".into()));
-    }
-    if !(raw.latitude >= -90.0 && raw.latitude <= 90.0) {
-        return Err(field(
-            "latitude",
-            format!("{} is not within -90..=90", raw.latitude),
-        ));
-    }
-    if !(raw.longitude >= -180.0 && raw.longitude <= 180.0) {
-        return Err(field(
-            "longitude",
-            format!("{} is not within -180..=180", raw.longitude),
-        ));
-    }
-    if !raw.flood_threshold_m.is_finite() {
-        return Err(field("flood_threshold_m", "must be a finite number".into()));
-    }
-    if !valid_offset(&raw.utc_offset) {
-        return Err(field(
-            "utc_offset",
-            format!(
-                "{:?} must be +HH:MM or -HH:MM within 14 hours",
-                raw.utc_offset
-            ),
-        ));
-    }
-    if !matches!(raw.levels.units.as_str(), "m" | "ft") {
-        return Err(field(
-            "levels.units",
-            format!("{:?} must be \"m\" or \"ft\"", raw.levels.units),
-        ));
-    }
-    let seasons = match raw.seasons.and_then(|s| s.custom) {
-        None => SeasonSpec::meteorological(),
-        Some(custom) if custom.is_empty() => {
-            return Err(field(
-                "seasons.custom",
-                "must list at least one season".into(),
-            ));
-        }
-        Some(custom) => custom
-            .iter()
-            .map(|s| SeasonSpec::new(&s.name, s.start_month, s.months))
-            .collect::<Result<Vec<_>, _>>()
-            .map_err(|err| field("seasons.custom", err.to_string()))?,
-    };
-    let mut exceed_days = raw
-        .model
-        .and_then(|m| m.exceed_days)
-        .unwrap_or_else(|| DEFAULT_EXCEED_DAYS.to_vec());
-    exceed_days.sort_unstable();
-    exceed_days.dedup();
-    if exceed_days.iter().any(|&k| k == 0 || k > 366) {
-        return Err(field(
-            "model.exceed_days",
-            "each k must be 1 to 366 days".into(),
-        ));
-    }
-    // The model's loader must accept it too (the fields the service does not look at).
-    tidetally_model::gauge::GaugeConfig::from_toml_str(
-        text,
-        "gauge TOML",
-        std::path::Path::new(""),
-    )
-    .map_err(|err| doc(err.to_string()))?;
+    let config = GaugeConfig::from_toml_str(text, WHAT, Path::new("")).map_err(gauge_error)?;
+    let path = |p: &Path| p.to_string_lossy().into_owned();
     Ok(GaugeMeta {
-        id: raw.id,
-        name: raw.name,
-        latitude: raw.latitude,
-        longitude: raw.longitude,
-        datum: raw.datum,
-        flood_threshold_m: raw.flood_threshold_m,
-        utc_offset: raw.utc_offset,
-        seasons,
-        levels_file: raw.levels.file,
-        drivers: raw.drivers.unwrap_or_default(),
-        exceed_days,
+        utc_offset: config.utc_offset.to_string(),
+        levels_file: path(&config.levels.file),
+        drivers: DriverFiles {
+            enso: config.drivers.enso.as_deref().map(path),
+            rmm: config.drivers.rmm.as_deref().map(path),
+            wind: config.drivers.wind.as_deref().map(path),
+            enso_forecast: config.drivers.enso_forecast.as_deref().map(path),
+        },
+        exceed_days: config.model.exceed_days,
+        seasons: config.seasons.specs,
+        id: config.id,
+        name: config.name,
+        latitude: config.latitude,
+        longitude: config.longitude,
+        datum: config.datum,
+        flood_threshold_m: config.flood_threshold_m,
     })
 }
 
-fn valid_offset(text: &str) -> bool {
-    let bytes = text.as_bytes();
-    if bytes.len() != 6 || !matches!(bytes[0], b'+' | b'-') || bytes[3] != b':' {
-        return false;
-    }
-    let (Ok(hours), Ok(minutes)) = (text[1..3].parse::<u32>(), text[4..6].parse::<u32>()) else {
-        return false;
+/// The model's error with the upload's label in place of a file name.
+fn gauge_error(error: GaugeError) -> UploadError {
+    let message = match error {
+        GaugeError::Toml { message, .. } => message,
+        GaugeError::Invalid {
+            key, expected, got, ..
+        } => format!("field {key}: expected {expected}, got {got}"),
+        // Only loading data files fails otherwise, which text parsing never does.
+        other => other.to_string(),
     };
-    hours <= 14 && minutes < 60 && (hours < 14 || minutes == 0)
+    UploadError::Document {
+        what: WHAT.to_owned(),
+        message,
+    }
 }
 
 #[cfg(test)]
@@ -222,6 +113,11 @@ mod tests {
             Some("../drivers/enso-monthly.csv")
         );
         assert_eq!(g.levels_file, "port-alder-levels.csv.gz");
+        assert_eq!(g.drivers.wind.as_deref(), Some("port-alder-wind.csv"));
+        assert_eq!(g.drivers.rmm, None);
+        assert_eq!(g.utc_offset, "-05:00");
+        assert_eq!((g.latitude, g.longitude), (44.12, -67.31));
+        assert_eq!((g.datum.as_str(), g.flood_threshold_m), ("STND", 0.85));
     }
 
     #[test]
@@ -251,6 +147,12 @@ mod tests {
             let err = parse_gauge_toml(&text).unwrap_err().to_string();
             assert!(err.contains(expected), "{to}: {err}");
         }
+        let unknown = EXAMPLE.replace("datum = \"STND\"", "datum = \"STND\"\ncolour = \"blue\"");
+        let err = parse_gauge_toml(&unknown).unwrap_err().to_string();
+        assert!(
+            err.starts_with("gauge TOML: ") && err.contains("colour"),
+            "{err}"
+        );
         let missing = EXAMPLE.replace("datum = \"STND\"\n", "");
         let err = parse_gauge_toml(&missing).unwrap_err().to_string();
         assert!(err.contains("datum"), "{err}");

@@ -1,5 +1,5 @@
-//! The drivers a gauge model can use, their units and the step in which their rate ratios are
-//! reported.
+//! The predictors a gauge model can use, as named in the gauge TOML's `[model].predictors`:
+//! their units, and the step in which their rate ratios are reported.
 
 use std::fmt;
 use std::str::FromStr;
