@@ -7,10 +7,6 @@
 //! Needs `chromium` and `chromedriver` (Debian: `apt-get install chromium chromium-driver`);
 //! `CHROMIUM` and `CHROMEDRIVER` override the paths. Without them the test fails when `CI`
 //! is set and otherwise prints a skip message. Screenshots go to `target/test-artifacts/`.
-//!
-//! While the service answers `503 not-available` for a gauge's outlook, seasons or hindcast
-//! (pipeline steps not wired yet), the invented fixtures in `tests/fixtures/page/` answer in
-//! their place and the test prints a NOTE; `TIDETALLY_PAGE_REAL_ONLY=1` turns that off.
 #![allow(clippy::unwrap_used)]
 
 #[path = "support/webdriver.rs"]
@@ -20,14 +16,8 @@ use std::net::{SocketAddr, TcpListener};
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Stdio};
 use std::sync::Arc;
-use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::{Duration, Instant};
 
-use axum::body::Body;
-use axum::extract::Request;
-use axum::http::{StatusCode, header};
-use axum::middleware::Next;
-use axum::response::{IntoResponse, Response};
 use serde_json::{Value, json};
 use tidetally_server::store::Store;
 use tidetally_server::{AppState, state};
@@ -77,44 +67,6 @@ fn free_port() -> u16 {
         .port()
 }
 
-// ---- development fixtures, used only while the service answers 503 "not-available" ----
-
-/// Set when a fixture answered in place of a 503 from the service.
-static FIXTURE_USED: AtomicBool = AtomicBool::new(false);
-
-/// The fixture for `/api/v1/gauges/{id}/{outlook|seasons|hindcast}`, with the gauge id filled in.
-fn fixture_for(path: &str) -> Option<String> {
-    let rest = path.strip_prefix("/api/v1/gauges/")?;
-    let (id, kind) = rest.split_once('/')?;
-    if !matches!(kind, "outlook" | "seasons" | "hindcast") {
-        return None;
-    }
-    let file = workspace().join(format!("tests/fixtures/page/{kind}.json"));
-    let text = std::fs::read_to_string(&file).ok()?;
-    Some(text.replace("\"GAUGE\"", &format!("\"{id}\"")))
-}
-
-/// Replaces a 503 answer of a not-yet-wired pipeline step by the fixture, and says so.
-async fn fixture_when_not_available(request: Request, next: Next) -> Response {
-    let path = request.uri().path().to_owned();
-    let response = next.run(request).await;
-    let real_only = std::env::var_os("TIDETALLY_PAGE_REAL_ONLY").is_some();
-    if real_only || response.status() != StatusCode::SERVICE_UNAVAILABLE {
-        return response;
-    }
-    match fixture_for(&path) {
-        Some(body) => {
-            FIXTURE_USED.store(true, Ordering::SeqCst);
-            (
-                [(header::CONTENT_TYPE, "application/json")],
-                Body::from(body),
-            )
-                .into_response()
-        }
-        None => response,
-    }
-}
-
 // ---- the service ----
 
 struct Service {
@@ -151,8 +103,7 @@ fn start_service() -> Service {
     assert_eq!(seeded, 4, "the demo coastline has four gauges");
     let app_state = AppState::new(store, None, Duration::from_secs(60));
     state::load_catalog(&app_state).expect("catalog loads");
-    let router = tidetally_server::app(Arc::clone(&app_state))
-        .layer(axum::middleware::from_fn(fixture_when_not_available));
+    let router = tidetally_server::app(Arc::clone(&app_state));
 
     let listener = TcpListener::bind("127.0.0.1:0").expect("bind loopback");
     listener.set_nonblocking(true).expect("non-blocking");
@@ -692,11 +643,5 @@ fn planner_page_in_headless_chromium() {
     check_console(&session);
     session.quit();
 
-    if FIXTURE_USED.load(Ordering::SeqCst) {
-        eprintln!(
-            "NOTE: the service answered 503 not-available for outlook/seasons/hindcast; the page \
-             was checked against tests/fixtures/page/ (invented) in their place"
-        );
-    }
     eprintln!("screenshots in {}", dir.display());
 }
