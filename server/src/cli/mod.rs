@@ -13,6 +13,7 @@ mod outlook;
 mod score;
 mod serve;
 mod tide;
+mod tide_risk;
 
 /// tidetally: seasonal outlooks of minor coastal flood days at tide gauges.
 #[derive(Debug, Parser)]
@@ -109,6 +110,8 @@ pub enum TideCommand {
     Analyze(TideAnalyzeArgs),
     /// Tide prediction from constituents.
     Predict(TidePredictArgs),
+    /// Tide-driven flood-risk days of a gauge's coming season.
+    Risk(TideRiskArgs),
 }
 
 /// Arguments of `tide analyze`.
@@ -140,6 +143,21 @@ pub struct TidePredictArgs {
     /// Step between predictions in minutes.
     #[arg(long, default_value_t = 60)]
     pub step_minutes: u32,
+}
+
+/// Arguments of `tide risk`.
+#[derive(Debug, Args)]
+pub struct TideRiskArgs {
+    /// The gauge's TOML file; it names its level file relative to itself.
+    #[arg(long)]
+    pub gauge: PathBuf,
+    /// The season, e.g. `2026-DJF` (default: the first season after the record ends).
+    #[arg(long)]
+    pub season: Option<String>,
+    /// A day is a tide risk day when its predicted high water comes within this many metres
+    /// of the threshold.
+    #[arg(long, default_value_t = 0.25)]
+    pub margin: f64,
 }
 
 /// Arguments of `datums`.
@@ -194,6 +212,7 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
         Command::Glm(args) => glm::run(args),
         Command::Tide(TideCommand::Analyze(args)) => tide::analyze(args),
         Command::Tide(TideCommand::Predict(args)) => tide::predict(args),
+        Command::Tide(TideCommand::Risk(args)) => tide_risk::run(args),
         Command::Datums(args) => tide::datums(args),
         Command::Score(args) => score::run(args),
         Command::Fit(args) => fit::run(args),

@@ -63,7 +63,7 @@ pub(super) fn gauge_record(
 }
 
 /// Prepares the gauge from its stored inputs. The ENSO forecast is left unset: pick it for a
-/// target season with [`with_forecast_for`].
+/// target season with `with_forecast_for`.
 pub fn prepare_gauge(
     inputs: &GaugeInputs,
     tide: TideAnalysis,
