@@ -18,7 +18,7 @@ pub use design::{Design, DesignRow, DriverValue, LeaveOutReason, LeftOut, Season
 pub use model::{CoefficientReport, FitPeriod, GaugeModel, MIN_SEASONS, fit_design};
 pub use prepare::{
     GaugeDrivers, PrepareError, PreparedGauge, TIDE_MARGIN_M, TidalDriver, driver_of, load_drivers,
-    predictor_settings, prepare, prepare_from, tidal_driver,
+    predictor_settings, prepare, prepare_from, sea_level_from_record, tidal_driver,
 };
 
 use crate::glm::FamilyRequest;

@@ -144,6 +144,25 @@ fn open(path: &Path) -> Result<BufReader<File>, PrepareError> {
         })
 }
 
+/// The gauge's sea-level trend: a linear least-squares fit of the record's monthly means
+/// (seasonal cycle fitted as nuisance terms); `None` when the record is too short to fit one.
+pub fn sea_level_from_record(record: &GaugeRecord) -> Option<SeaLevelSource> {
+    let months: Vec<MonthlyMeanLevel> = record
+        .summary
+        .monthly
+        .iter()
+        .map(|m| MonthlyMeanLevel {
+            year: m.year,
+            month: m.month,
+            mean_m: m.mean_m,
+            readings: u32::try_from(m.readings).unwrap_or(u32::MAX),
+        })
+        .collect();
+    drivers::fit_trend(&months, TrendShape::Linear, SeasonalCycle::default())
+        .ok()
+        .map(SeaLevelSource::Fitted)
+}
+
 /// Reads the driver files a gauge names, and fits its sea-level trend (linear least squares
 /// on the record's monthly means).
 pub fn load_drivers(
@@ -179,20 +198,7 @@ pub fn load_drivers(
         }
         None => None,
     };
-    let months: Vec<MonthlyMeanLevel> = record
-        .summary
-        .monthly
-        .iter()
-        .map(|m| MonthlyMeanLevel {
-            year: m.year,
-            month: m.month,
-            mean_m: m.mean_m,
-            readings: u32::try_from(m.readings).unwrap_or(u32::MAX),
-        })
-        .collect();
-    let sea_level = drivers::fit_trend(&months, TrendShape::Linear, SeasonalCycle::default())
-        .ok()
-        .map(SeaLevelSource::Fitted);
+    let sea_level = sea_level_from_record(record);
     let tide = if config.model.predictors.contains(&Predictor::Tide) {
         let series = gauge::load_levels(config)?;
         Some(tidal_driver(config, &series.times, &series.levels_m)?)

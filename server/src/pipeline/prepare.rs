@@ -5,10 +5,7 @@
 
 use std::path::Path;
 
-use tidetally_model::drivers::{
-    self, EnsoForecast, EnsoSeries, MonthlyMeanLevel, RmmSeries, SeaLevelSource, SeasonalCycle,
-    TrendShape, WindSeries,
-};
+use tidetally_model::drivers::{EnsoForecast, EnsoSeries, RmmSeries, WindSeries};
 use tidetally_model::fit::{self, GaugeDrivers, PreparedGauge};
 use tidetally_model::gauge::{self, GaugeConfig, GaugeRecord};
 use tidetally_model::ingest;
@@ -100,21 +97,7 @@ fn gauge_drivers(
         ),
         None => None,
     };
-    let months: Vec<MonthlyMeanLevel> = record
-        .summary
-        .monthly
-        .iter()
-        .map(|m| MonthlyMeanLevel {
-            year: m.year,
-            month: m.month,
-            mean_m: m.mean_m,
-            readings: u32::try_from(m.readings).unwrap_or(u32::MAX),
-        })
-        .collect();
-    // As the model's `fit::load_drivers`: a linear trend of the record's monthly means.
-    let sea_level = drivers::fit_trend(&months, TrendShape::Linear, SeasonalCycle::default())
-        .ok()
-        .map(SeaLevelSource::Fitted);
+    let sea_level = fit::sea_level_from_record(record);
     let uses_tide = config.model.predictors.contains(&gauge::Predictor::Tide);
     let tide = if uses_tide && tide == TideAnalysis::AsConfigured {
         let levels = require_levels(inputs)?;
