@@ -16,6 +16,7 @@ mod prepare;
 pub use crate::predictor::{Predictor, UnknownPredictor};
 pub use design::{Design, DesignRow, DriverValue, LeaveOutReason, LeftOut, SeasonData};
 pub use model::{CoefficientReport, FitPeriod, GaugeModel, MIN_SEASONS, fit_design};
+pub(crate) use model::{GlmInput, glm_input};
 pub use prepare::{
     GaugeDrivers, PrepareError, PreparedGauge, TIDE_MARGIN_M, TidalDriver, driver_of, load_drivers,
     predictor_settings, prepare, prepare_from, sea_level_from_record, tidal_driver,

@@ -5,7 +5,7 @@ use serde::Serialize;
 
 use super::FitError;
 use super::design::{Design, LeftOut};
-use crate::glm::{self, FamilyChoice, FamilyRequest, FittedGlm, GlmError, GlmSpec};
+use crate::glm::{self, FamilyChoice, FamilyRequest, FittedGlm, GlmData, GlmError, GlmSpec};
 use crate::predictor::Predictor;
 
 /// One coefficient of a gauge model, with its rate ratio when it belongs to a driver.
@@ -82,16 +82,28 @@ pub struct GaugeModel {
 /// The fewest seasons a model is fitted on: fewer leave no honest degrees of freedom.
 pub const MIN_SEASONS: usize = 8;
 
-/// Fits `design` by `family`. Predictors constant over the fitted seasons are dropped with a
-/// note (they cannot be told apart from the intercept); fewer than [`MIN_SEASONS`] usable
-/// seasons, or a GLM failure, is an error.
-pub fn fit_design(design: &Design, family: FamilyRequest) -> Result<GaugeModel, FitError> {
+/// A design made ready for the GLM: predictors constant over its seasons dropped (they
+/// cannot be told apart from the intercept), each with a note, and ln(observed days) as the
+/// offset.
+pub(crate) struct GlmInput {
+    /// The design with the kept predictors only.
+    pub design: Design,
+    /// The checked GLM data.
+    pub data: GlmData,
+    /// One note per dropped predictor.
+    pub notes: Vec<String>,
+}
+
+/// Checks `design` for the GLM: fewer than [`MIN_SEASONS`] usable seasons (or too few for its
+/// predictors) is an error; constant predictors are dropped with a note.
+pub(crate) fn glm_input(design: &Design) -> Result<GlmInput, FitError> {
     let rows = &design.rows;
-    if rows.len() < MIN_SEASONS.max(design.predictors.len() + 2) {
+    let needed = MIN_SEASONS.max(design.predictors.len() + 2);
+    if rows.len() < needed {
         return Err(FitError::TooFewSeasons {
             season_name: design.season_name.clone(),
             usable: rows.len(),
-            needed: MIN_SEASONS.max(design.predictors.len() + 2),
+            needed,
             left_out: design.left_out.len(),
         });
     }
@@ -114,7 +126,7 @@ pub fn fit_design(design: &Design, family: FamilyRequest) -> Result<GaugeModel, 
         .iter()
         .map(|r| f64::from(r.observed_days))
         .collect();
-    let spec = GlmSpec {
+    let data = GlmSpec {
         response: design.response(),
         predictors: design
             .predictors
@@ -135,6 +147,22 @@ pub fn fit_design(design: &Design, family: FamilyRequest) -> Result<GaugeModel, 
         season_name: design.season_name.clone(),
         source,
     })?;
+    Ok(GlmInput {
+        design,
+        data,
+        notes,
+    })
+}
+
+/// Fits `design` by `family`. Predictors constant over the fitted seasons are dropped with a
+/// note (they cannot be told apart from the intercept); fewer than [`MIN_SEASONS`] usable
+/// seasons, or a GLM failure, is an error.
+pub fn fit_design(design: &Design, family: FamilyRequest) -> Result<GaugeModel, FitError> {
+    let GlmInput {
+        design,
+        data: spec,
+        mut notes,
+    } = glm_input(design)?;
     let fitted = match glm::fit(&spec, family) {
         Ok(fitted) => Ok(fitted),
         // The negative-binomial theta iteration can fail to settle when the counts are close

@@ -1,14 +1,16 @@
 //! A case's refit on its training seasons, warm-started from the system's full-record fit.
 //!
-//! The steps are those of [`crate::fit::fit_design`]: too few seasons is an error, a
-//! predictor constant over the training seasons is left out, the offset is ln(observed
-//! days), and a negative-binomial iteration that does not settle falls back to Poisson. The
+//! The design is made ready by the same step as [`crate::fit::fit_design`] (too few seasons
+//! is an error, a predictor constant over the training seasons is left out, the offset is
+//! ln(observed days)), and a negative-binomial iteration that does not settle falls back to
+//! Poisson. The
 //! GLM then starts from the full-record coefficients and theta ([`crate::glm::fit_from`]),
 //! which reaches the same fit as a cold start in fewer iterations. The coefficient report of
 //! a [`crate::fit::GaugeModel`] is not built: a hindcast only draws from the fit.
 
-use crate::fit::{Design, FitError, GaugeModel, MIN_SEASONS, Predictor};
-use crate::glm::{self, FamilyRequest, FittedGlm, GlmError, GlmSpec, ParameterDraw};
+use crate::fit::{Design, FitError, GaugeModel, Predictor};
+use crate::fit::{GlmInput, glm_input};
+use crate::glm::{self, FamilyRequest, FittedGlm, GlmError, ParameterDraw};
 
 /// The full-record fit a system's refits start from.
 #[derive(Debug, Clone)]
@@ -62,47 +64,11 @@ pub(crate) fn refit(
     family: FamilyRequest,
     start: &WarmStart,
 ) -> Result<Refit, FitError> {
-    let rows = &design.rows;
-    let needed = MIN_SEASONS.max(design.predictors.len() + 2);
-    if rows.len() < needed {
-        return Err(FitError::TooFewSeasons {
-            season_name: design.season_name.clone(),
-            usable: rows.len(),
-            needed,
-            left_out: design.left_out.len(),
-        });
-    }
-    let kept: Vec<Predictor> = design
-        .predictors
-        .iter()
-        .enumerate()
-        .filter(|&(j, _)| rows.iter().any(|r| r.x[j] != rows[0].x[j]))
-        .map(|(_, &p)| p)
-        .collect();
-    let design = design.select(&kept);
+    let GlmInput { design, data, .. } = glm_input(design)?;
     let glm_error = |source| FitError::Glm {
         season_name: design.season_name.clone(),
         source,
     };
-    let exposure: Vec<f64> = rows_exposure(&design);
-    let data = GlmSpec {
-        response: design.response(),
-        predictors: design
-            .predictors
-            .iter()
-            .enumerate()
-            .map(|(j, p)| {
-                (
-                    p.as_str().to_owned(),
-                    design.rows.iter().map(|r| r.x[j]).collect(),
-                )
-            })
-            .collect(),
-        offset: None,
-    }
-    .with_log_exposure(&exposure)
-    .and_then(GlmSpec::check)
-    .map_err(glm_error)?;
     let fit = |request| match start.for_predictors(&design.predictors) {
         Some(from) => glm::fit_from(&data, request, &from),
         None => glm::fit(&data, request),
@@ -119,12 +85,4 @@ pub(crate) fn refit(
         glm: fitted,
         predictors: design.predictors,
     })
-}
-
-fn rows_exposure(design: &Design) -> Vec<f64> {
-    design
-        .rows
-        .iter()
-        .map(|r| f64::from(r.observed_days))
-        .collect()
 }
