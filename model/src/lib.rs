@@ -24,3 +24,4 @@ pub mod predictor;
 pub mod season;
 pub mod tide;
 pub mod verify;
+pub mod water;

@@ -18,15 +18,26 @@ pub enum ModelKind {
     Climatology,
     /// The sea-level trend alone.
     TrendOnly,
+    /// The water-level engine (daily high waters simulated on the known tide).
+    Water,
 }
 
 impl ModelKind {
+    /// Every system, in index order.
+    pub const ALL: [ModelKind; 4] = [
+        ModelKind::Drivers,
+        ModelKind::Climatology,
+        ModelKind::TrendOnly,
+        ModelKind::Water,
+    ];
+
     /// The predictors of this system, given the gauge model's.
     pub fn predictors(self, gauge_predictors: &[Predictor]) -> Vec<Predictor> {
         match self {
             ModelKind::Drivers => gauge_predictors.to_vec(),
             ModelKind::Climatology => Vec::new(),
             ModelKind::TrendOnly => vec![Predictor::SeaLevel],
+            ModelKind::Water => Vec::new(),
         }
     }
 
@@ -36,6 +47,7 @@ impl ModelKind {
             ModelKind::Drivers => "the driver model",
             ModelKind::Climatology => "the long-term average",
             ModelKind::TrendOnly => "the sea-level trend alone",
+            ModelKind::Water => "the water-level engine",
         }
     }
 
@@ -45,6 +57,7 @@ impl ModelKind {
             ModelKind::Drivers => 0,
             ModelKind::Climatology => 1,
             ModelKind::TrendOnly => 2,
+            ModelKind::Water => 3,
         }
     }
 }
@@ -79,4 +92,24 @@ pub enum ConcurrentEnso {
     /// Resampled from the training seasons with MJO and wind (no ENSO foresight at all: a
     /// lower bound).
     Resampled,
+    /// As known when the outlook would have been issued: the month before the season carried
+    /// forward, with the error of that persistence in the training seasons
+    /// ([`crate::water::enso_at_issue`]). What a real outlook would have scored.
+    AtIssue,
+}
+
+impl ConcurrentEnso {
+    /// The treatment in words.
+    pub fn words(self) -> &'static str {
+        match self {
+            ConcurrentEnso::Observed => {
+                "each season's ENSO as later observed (a perfect ENSO forecast: an upper bound)"
+            }
+            ConcurrentEnso::Resampled => "ENSO resampled from the training seasons (no foresight)",
+            ConcurrentEnso::AtIssue => {
+                "ENSO as known at issue time: the month before the season carried forward with \
+                 its past error"
+            }
+        }
+    }
 }

@@ -21,16 +21,20 @@
 pub mod baselines;
 mod predict;
 mod refit;
+mod report;
+mod run;
 pub mod schemes;
 pub mod scoring;
 pub mod verdict;
 
-use rand::{Rng, SeedableRng};
-use rand_chacha::ChaCha8Rng;
 use rayon::prelude::*;
-use serde::Serialize;
 
 pub use baselines::{ConcurrentEnso, ModelKind, known_at_issue};
+pub use report::{
+    CaseRecord, DriverAtIssue, EngineScore, ForecastMean, GaugeHindcast, NotRun, OptionsReport,
+    SchemeHindcast, SeasonHindcast, SkippedCase, SystemFamily,
+};
+pub use run::hindcast_season;
 pub use schemes::{DEFAULT_MIN_TRAINING, DEFAULT_NEIGHBOUR_YEARS, Scheme};
 pub use scoring::{
     BinReport, BrierReport, ModelScores, RELIABILITY_BINS, RocPointReport, RocReport, SediReport,
@@ -38,17 +42,19 @@ pub use scoring::{
 };
 pub use verdict::{HEADLINE_SCORE, VerdictKind, VerdictReport};
 
-use crate::drivers::EnsoTiming;
-use crate::fit::{
-    Design, DesignRow, FitError, LeftOut, Predictor, PreparedGauge, SeasonData, family_request,
-    fit_design,
-};
-use crate::glm::{Family, FamilyRequest};
+use crate::drivers::{EnsoSeries, EnsoTiming};
+use crate::fit::{FitError, Predictor, PreparedGauge, SeasonData, family_request};
+use crate::glm::FamilyRequest;
 use crate::verify::{Bootstrap, VerifyError};
+use crate::water::GaugeWater;
 
 /// Mixture components per forecast unless asked otherwise (the outlook uses more; a hindcast
 /// makes hundreds of forecasts and scores them together).
 pub const DEFAULT_DRAWS: usize = 200;
+
+/// Simulated seasons per water-engine forecast unless asked otherwise (the outlook uses
+/// [`crate::water::DEFAULT_SIMULATIONS`]; a hindcast scores hundreds of forecasts together).
+pub const DEFAULT_WATER_SIMULATIONS: usize = 500;
 
 /// Bootstrap resamples unless asked otherwise.
 pub const DEFAULT_RESAMPLES: usize = 1000;
@@ -90,10 +96,15 @@ pub enum HindcastError {
     #[error("a hindcast needs at least one mixture component per forecast (draws = 0)")]
     NoDraws,
     /// A season name with no usable season.
-    #[error("{season_name}: no usable season to hindcast")]
+    #[error(
+        "{season_name}: no usable season to hindcast{}",
+        missing.as_ref().map_or_else(String::new, |m| format!(" (first season left out: {m})"))
+    )]
     NoSeasons {
         /// The season name.
         season_name: String,
+        /// Why the first season was left out, which names a missing driver.
+        missing: Option<String>,
     },
 }
 
@@ -112,11 +123,14 @@ pub struct HindcastOptions {
     pub neighbour_years: u32,
     /// How the season's own ENSO is treated when the model uses it.
     pub concurrent_enso: ConcurrentEnso,
+    /// Simulated seasons per water-engine forecast.
+    pub water_simulations: usize,
 }
 
 impl Default for HindcastOptions {
     fn default() -> Self {
         Self {
+            water_simulations: DEFAULT_WATER_SIMULATIONS,
             draws: DEFAULT_DRAWS,
             resamples: DEFAULT_RESAMPLES,
             seed: DEFAULT_SEED,
@@ -158,175 +172,10 @@ pub struct HindcastSetup<'a> {
     pub enso_timing: EnsoTiming,
     /// The `k` of each `P(N >= k)`.
     pub exceed_days: &'a [u32],
-}
-
-/// A driver of the model and how a hindcast forecast knows its value.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct DriverAtIssue {
-    /// The predictor.
-    pub predictor: Predictor,
-    /// Whether the season's own value is used (known at issue time).
-    pub known: bool,
-    /// The rule in words.
-    pub rule: String,
-}
-
-/// The family each system was fitted with.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct SystemFamily {
-    /// The system.
-    pub model: ModelKind,
-    /// Its family, chosen by the full-record fit and kept for every refit.
-    pub family: Family,
-}
-
-/// One system's forecast mean of a case.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct ForecastMean {
-    /// The system.
-    pub model: ModelKind,
-    /// Its forecast mean, days.
-    pub mean: f64,
-}
-
-/// One forecast season of a scheme.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct CaseRecord {
-    /// The season's label.
-    pub season: String,
-    /// Flood days observed.
-    pub observed: u32,
-    /// Days observed (the forecast's exposure and its largest count).
-    pub observed_days: u32,
-    /// Seasons the forecast was fitted on.
-    pub training_seasons: usize,
-    /// Each system's forecast mean.
-    pub means: Vec<ForecastMean>,
-    /// Each system's forecast pmf (index = days), in `means` order; kept for callers, not
-    /// written to JSON.
-    #[serde(skip)]
-    pub pmfs: Vec<Vec<f64>>,
-}
-
-/// A season a scheme would forecast but could not.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct SkippedCase {
-    /// The season's label.
-    pub season: String,
-    /// Why.
-    pub reason: String,
-}
-
-/// The hindcast of one scheme.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct SchemeHindcast {
-    /// The scheme and its parameters.
-    pub scheme: Scheme,
-    /// The scheme's rule in words.
-    pub rule: String,
-    /// The seasons forecast.
-    pub cases: Vec<CaseRecord>,
-    /// Seasons that could not be forecast, and why.
-    pub skipped: Vec<SkippedCase>,
-    /// Mean scores of each system.
-    pub models: Vec<ModelScores>,
-    /// Skill intervals: the driver model and the trend-only model against the climatology,
-    /// and the driver model against the trend-only model.
-    pub skill: Vec<SkillReport>,
-    /// Verdicts of the driver model against each baseline in this scheme.
-    pub verdicts: Vec<VerdictReport>,
-}
-
-impl SchemeHindcast {
-    /// The skill report of `model` against `reference`.
-    pub fn skill_of(&self, model: ModelKind, reference: ModelKind) -> Option<&SkillReport> {
-        self.skill
-            .iter()
-            .find(|s| s.model == model && s.reference == reference)
-    }
-
-    /// The mean scores of `model`.
-    pub fn scores_of(&self, model: ModelKind) -> Option<&ModelScores> {
-        self.models.iter().find(|m| m.model == model)
-    }
-}
-
-/// The hindcast of one season name at one gauge.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct SeasonHindcast {
-    /// The season name.
-    pub season_name: String,
-    /// The driver model's predictors.
-    pub predictors: Vec<Predictor>,
-    /// How each driver's value is known at issue time.
-    pub issue_time: Vec<DriverAtIssue>,
-    /// The family of each system.
-    pub families: Vec<SystemFamily>,
-    /// Usable seasons of the name.
-    pub usable_seasons: usize,
-    /// Seasons of the name left out of every fit, and why.
-    pub left_out: Vec<LeftOut>,
-    /// Leave-one-year-out, then rolling origin.
-    pub schemes: Vec<SchemeHindcast>,
-    /// The verdicts against the climatology and, when there is one, the trend-only model.
-    pub verdicts: Vec<VerdictReport>,
-    /// Plain notes (baselines left out, fallbacks).
-    pub notes: Vec<String>,
-}
-
-impl SeasonHindcast {
-    /// The verdict against `reference`.
-    pub fn verdict(&self, reference: ModelKind) -> Option<&VerdictReport> {
-        self.verdicts.iter().find(|v| v.reference == reference)
-    }
-
-    /// The scheme named `name` (`leave_one_year_out` or `rolling_origin`).
-    pub fn scheme(&self, name: &str) -> Option<&SchemeHindcast> {
-        self.schemes.iter().find(|s| s.scheme.name() == name)
-    }
-}
-
-/// A season name whose hindcast could not be run.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct NotRun {
-    /// The season name.
-    pub season_name: String,
-    /// Why.
-    pub error: String,
-}
-
-/// The options a hindcast ran with, as reported.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct OptionsReport {
-    /// Mixture components per forecast.
-    pub draws: usize,
-    /// Bootstrap resamples.
-    pub resamples: usize,
-    /// Seed.
-    pub seed: u64,
-    /// Rolling origin's minimum training seasons.
-    pub min_training: usize,
-    /// Leave-one-year-out's neighbour years.
-    pub neighbour_years: u32,
-    /// Treatment of the season's own ENSO.
-    pub concurrent_enso: ConcurrentEnso,
-}
-
-/// The hindcast of every season name at one gauge.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct GaugeHindcast {
-    /// The gauge's id.
-    pub gauge_id: String,
-    /// The gauge's name.
-    pub gauge_name: String,
-    /// The options.
-    pub options: OptionsReport,
-    /// One hindcast per season name that could be run.
-    pub seasons: Vec<SeasonHindcast>,
-    /// Season names that could not be run, and why.
-    pub not_run: Vec<NotRun>,
-    /// Notes from preparing the gauge.
-    pub notes: Vec<String>,
+    /// The gauge's ENSO index (ENSO as known at issue time is persisted from it).
+    pub enso: Option<&'a EnsoSeries>,
+    /// The water-level engine of the season name, hindcast beside the count model.
+    pub water: Option<&'a GaugeWater>,
 }
 
 /// Hindcasts every season name of a prepared gauge (season names in parallel).
@@ -354,6 +203,8 @@ pub fn hindcast_gauge(
                 family: family_request(config.model.family),
                 enso_timing: prepared.settings.enso_timing,
                 exceed_days: &config.model.exceed_days,
+                enso: prepared.drivers.enso.as_ref(),
+                water: None,
             };
             (spec.name().to_owned(), hindcast_season(&setup, options))
         })
@@ -387,363 +238,8 @@ pub fn hindcast_gauge(
 }
 
 fn check_options(options: &HindcastOptions) -> Result<Bootstrap, HindcastError> {
-    if options.draws == 0 {
+    if options.draws == 0 || options.water_simulations == 0 {
         return Err(HindcastError::NoDraws);
     }
     Ok(Bootstrap::new(options.resamples, options.seed)?)
-}
-
-/// One system of a season name's hindcast: its design columns and fixed family.
-struct System {
-    kind: ModelKind,
-    design: Design,
-    family: Family,
-    /// The full-record fit, where every refit starts.
-    start: refit::WarmStart,
-}
-
-/// Hindcasts one season name.
-///
-/// # Errors
-/// Bad options, no usable season, or a full-record fit of the driver model or the
-/// climatology that fails.
-pub fn hindcast_season(
-    setup: &HindcastSetup<'_>,
-    options: &HindcastOptions,
-) -> Result<SeasonHindcast, HindcastError> {
-    let bootstrap = check_options(options)?;
-    let mut notes = Vec::new();
-    let requested = Design::build(setup.seasons, setup.season_name, setup.predictors);
-    let mut columns = setup.predictors.to_vec();
-    let with_trend = if columns.contains(&Predictor::SeaLevel) {
-        Some(requested.clone())
-    } else {
-        columns.push(Predictor::SeaLevel);
-        let d = Design::build(setup.seasons, setup.season_name, &columns);
-        // The trend-only baseline needs the sea level in every season the model uses.
-        (d.rows.len() == requested.rows.len()).then_some(d)
-    };
-    let full = match with_trend {
-        Some(d) => d,
-        None => {
-            notes.push(
-                "the sea-level trend is missing for some seasons, so there is no trend-only \
-                 baseline"
-                    .to_owned(),
-            );
-            requested
-        }
-    };
-    if full.rows.is_empty() {
-        return Err(HindcastError::NoSeasons {
-            season_name: setup.season_name.to_owned(),
-        });
-    }
-    let has_trend = full.predictors.contains(&Predictor::SeaLevel);
-    let mut systems = Vec::new();
-    for kind in [
-        ModelKind::Drivers,
-        ModelKind::Climatology,
-        ModelKind::TrendOnly,
-    ] {
-        if kind == ModelKind::TrendOnly && !has_trend {
-            continue;
-        }
-        let design = full.select(&kind.predictors(setup.predictors));
-        match fit_design(&design, setup.family) {
-            Ok(model) => systems.push(System {
-                kind,
-                design,
-                family: model.family,
-                start: refit::WarmStart::of(&model),
-            }),
-            Err(source) if kind == ModelKind::TrendOnly => notes.push(format!(
-                "the trend-only baseline could not be fitted on the full record ({source}), so \
-                 it is left out"
-            )),
-            Err(source) => {
-                return Err(HindcastError::FullFit {
-                    model: kind,
-                    source,
-                });
-            }
-        }
-    }
-    let concurrent_known = match setup.enso_timing {
-        EnsoTiming::Preceding => true,
-        EnsoTiming::Concurrent => options.concurrent_enso == ConcurrentEnso::Observed,
-    };
-    let perfect_enso = setup.enso_timing == EnsoTiming::Concurrent
-        && options.concurrent_enso == ConcurrentEnso::Observed
-        && setup.predictors.contains(&Predictor::Enso);
-    if perfect_enso {
-        notes.push(PERFECT_ENSO_CAVEAT.trim_start().to_owned());
-    }
-    let issue_time = setup
-        .predictors
-        .iter()
-        .map(|&p| issue_rule(p, setup.enso_timing, options.concurrent_enso))
-        .collect();
-    let families = systems
-        .iter()
-        .map(|s| SystemFamily {
-            model: s.kind,
-            family: s.family,
-        })
-        .collect();
-    let mut schemes = Vec::new();
-    for (scheme_number, scheme) in options.schemes().into_iter().enumerate() {
-        schemes.push(run_scheme(
-            &systems,
-            scheme,
-            scheme_number as u64,
-            concurrent_known,
-            setup.exceed_days,
-            options,
-            &bootstrap,
-        )?);
-    }
-    let mut verdicts = Vec::new();
-    for reference in [ModelKind::Climatology, ModelKind::TrendOnly] {
-        if reference == ModelKind::TrendOnly && !systems.iter().any(|s| s.kind == reference) {
-            continue;
-        }
-        let entries: Vec<(Scheme, &SkillEntry)> = schemes
-            .iter()
-            .filter_map(|s| {
-                s.skill_of(ModelKind::Drivers, reference)
-                    .and_then(|r| r.entry(HEADLINE_SCORE))
-                    .map(|e| (s.scheme, e))
-            })
-            .collect();
-        let mut report =
-            verdict::overall_verdict(setup.gauge_name, &full.season_name, reference, &entries);
-        if perfect_enso {
-            report.sentence.push_str(PERFECT_ENSO_CAVEAT);
-        }
-        verdicts.push(report);
-    }
-    Ok(SeasonHindcast {
-        season_name: full.season_name.clone(),
-        predictors: setup.predictors.to_vec(),
-        issue_time,
-        families,
-        usable_seasons: full.rows.len(),
-        left_out: full.left_out.clone(),
-        schemes,
-        verdicts,
-        notes,
-    })
-}
-
-fn issue_rule(p: Predictor, timing: EnsoTiming, concurrent: ConcurrentEnso) -> DriverAtIssue {
-    let (known, rule) = match (p, timing, concurrent) {
-        (Predictor::Enso, EnsoTiming::Preceding, _) => (
-            true,
-            "ENSO of the preceding season, observed before the season begins",
-        ),
-        (Predictor::Enso, EnsoTiming::Concurrent, ConcurrentEnso::Observed) => (
-            true,
-            "the season's own ENSO as observed, standing in for a forecast issued before the \
-             season (past forecasts are not among the gauge's inputs): skill with a perfect \
-             ENSO forecast, an upper bound",
-        ),
-        (Predictor::Enso, EnsoTiming::Concurrent, ConcurrentEnso::Resampled) => (
-            false,
-            "the season's own ENSO is not known at issue time: resampled from the training \
-             seasons together with MJO and wind",
-        ),
-        (Predictor::Mjo | Predictor::Wind, _, _) => (
-            false,
-            "not known at issue time: each scenario takes the value of one training season \
-             drawn at random, as the outlook resamples past seasons",
-        ),
-        (Predictor::SeaLevel, _, _) => (
-            true,
-            "the sea-level trend at the season's middle, from the full-record trend line (a \
-             smooth line; not refitted per forecast)",
-        ),
-        (Predictor::Tide, _, _) => (true, "the predicted astronomical tide, known in advance"),
-    };
-    DriverAtIssue {
-        predictor: p,
-        known,
-        rule: rule.to_owned(),
-    }
-}
-
-/// What one case produced: its record, or why it was skipped.
-enum CaseOutcome {
-    Forecast(CaseRecord),
-    Skipped(SkippedCase),
-}
-
-fn run_scheme(
-    systems: &[System],
-    scheme: Scheme,
-    scheme_number: u64,
-    concurrent_known: bool,
-    exceed_days: &[u32],
-    options: &HindcastOptions,
-    bootstrap: &Bootstrap,
-) -> Result<SchemeHindcast, HindcastError> {
-    // Every system's design has the same rows in the same order.
-    let rows = &systems[0].design.rows;
-    let outcomes: Vec<Option<CaseOutcome>> = (0..rows.len())
-        .into_par_iter()
-        .map(|target| {
-            let training = scheme.training(rows, target)?;
-            Some(forecast_case(
-                systems,
-                target,
-                &training,
-                concurrent_known,
-                options,
-                scheme_number,
-            ))
-        })
-        .collect();
-    let mut cases = Vec::new();
-    let mut skipped = Vec::new();
-    for outcome in outcomes.into_iter().flatten() {
-        match outcome {
-            CaseOutcome::Forecast(c) => cases.push(c),
-            CaseOutcome::Skipped(s) => skipped.push(s),
-        }
-    }
-    let kinds: Vec<(ModelKind, Family)> = systems.iter().map(|s| (s.kind, s.family)).collect();
-    let mut report = SchemeHindcast {
-        scheme,
-        rule: scheme.rule(),
-        cases,
-        skipped,
-        models: Vec::new(),
-        skill: Vec::new(),
-        verdicts: Vec::new(),
-    };
-    if report.cases.is_empty() {
-        return Ok(report);
-    }
-    let mut pmfs = vec![Vec::new(); 3];
-    for case in &report.cases {
-        for (system, pmf) in systems.iter().zip(&case.pmfs) {
-            pmfs[system.kind.index()].push(pmf.clone());
-        }
-    }
-    let set = scoring::CaseSet {
-        observed: report.cases.iter().map(|c| c.observed).collect(),
-        pmfs,
-    };
-    let scored = scoring::score(&set, &kinds, exceed_days)?;
-    let skill = scoring::skill(
-        &scored,
-        &kinds,
-        &[
-            scoring::Comparison {
-                models: &[ModelKind::Drivers, ModelKind::TrendOnly],
-                reference: ModelKind::Climatology,
-            },
-            scoring::Comparison {
-                models: &[ModelKind::Drivers],
-                reference: ModelKind::TrendOnly,
-            },
-        ],
-        bootstrap,
-    );
-    report.models = scored.table;
-    report.skill = skill;
-    let n = report.cases.len();
-    report.verdicts = [ModelKind::Climatology, ModelKind::TrendOnly]
-        .into_iter()
-        .filter_map(|reference| {
-            report
-                .skill_of(ModelKind::Drivers, reference)
-                .and_then(|r| r.entry(HEADLINE_SCORE))
-                .map(|e| verdict::scheme_verdict(reference, e, n))
-        })
-        .collect();
-    Ok(report)
-}
-
-fn stream(seed: u64, scheme: u64, case: usize, system: u64) -> ChaCha8Rng {
-    let mut rng = ChaCha8Rng::seed_from_u64(seed);
-    rng.set_stream((scheme << 40) | ((case as u64) << 4) | system);
-    rng
-}
-
-fn forecast_case(
-    systems: &[System],
-    target: usize,
-    training: &[usize],
-    concurrent_known: bool,
-    options: &HindcastOptions,
-    scheme_number: u64,
-) -> CaseOutcome {
-    let first = &systems[0].design.rows[target];
-    let skip = |reason: String| {
-        CaseOutcome::Skipped(SkippedCase {
-            season: first.season.label(),
-            reason,
-        })
-    };
-    if training.is_empty() {
-        return skip("no training season".to_owned());
-    }
-    let mut scenario_rng = stream(options.seed, scheme_number, target, 15);
-    let scenario: Vec<usize> = (0..options.draws)
-        .map(|_| training[scenario_rng.gen_range(0..training.len())])
-        .collect();
-    let known = |p: Predictor| known_at_issue(p, concurrent_known);
-    let mut means = Vec::with_capacity(systems.len());
-    let mut pmfs = Vec::with_capacity(systems.len());
-    for system in systems {
-        let design = &system.design;
-        let sub = Design {
-            season_name: design.season_name.clone(),
-            predictors: design.predictors.clone(),
-            rows: training.iter().map(|&i| design.rows[i].clone()).collect(),
-            left_out: Vec::new(),
-        };
-        let request = match system.family {
-            Family::Poisson => FamilyRequest::Poisson,
-            Family::Negbin => FamilyRequest::Negbin,
-        };
-        let model = match refit::refit(&sub, request, &system.start) {
-            Ok(m) => m,
-            Err(e) => return skip(format!("{:?} refit: {e}", system.kind)),
-        };
-        let sources = predict::sources(&model.predictors, &design.predictors, known);
-        let scenario_rows: Vec<&DesignRow> = scenario.iter().map(|&i| &design.rows[i]).collect();
-        let mut rng = stream(
-            options.seed,
-            scheme_number,
-            target,
-            system.kind.index() as u64,
-        );
-        match predict::case_pmf(
-            &model.glm,
-            &sources,
-            &design.rows[target],
-            &scenario_rows,
-            options.draws,
-            &mut rng,
-        ) {
-            Ok(pmf) => {
-                means.push(ForecastMean {
-                    model: system.kind,
-                    mean: crate::verify::forecast_mean(&pmf),
-                });
-                pmfs.push(pmf);
-            }
-            Err(e) => return skip(e.to_string()),
-        }
-    }
-    CaseOutcome::Forecast(CaseRecord {
-        season: first.season.label(),
-        observed: first.flood_days,
-        observed_days: first.observed_days,
-        training_seasons: training.len(),
-        means,
-        pmfs,
-    })
 }

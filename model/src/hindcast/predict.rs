@@ -25,13 +25,26 @@ pub(crate) enum Source {
     Target(usize),
     /// Column `usize` of a resampled training season's row.
     Resampled(usize),
+    /// The value given for the draw (ENSO as known at issue time).
+    Given,
+}
+
+/// Where a predictor's value comes from, before it is tied to a design column.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum SourceKind {
+    /// The target season's own value (known at issue time).
+    Target,
+    /// A resampled training season's value.
+    Resampled,
+    /// A value given per draw.
+    Given,
 }
 
 /// Sources of a model's `predictors` (in its coefficient order), given the design's columns.
 pub(crate) fn sources(
     predictors: &[Predictor],
     columns: &[Predictor],
-    known: impl Fn(Predictor) -> bool,
+    kind: impl Fn(Predictor) -> SourceKind,
 ) -> Vec<Source> {
     predictors
         .iter()
@@ -40,10 +53,10 @@ pub(crate) fn sources(
                 .iter()
                 .position(|&c| c == p)
                 .expect("a model is fitted on a selection of the design's columns");
-            if known(p) {
-                Source::Target(column)
-            } else {
-                Source::Resampled(column)
+            match kind(p) {
+                SourceKind::Target => Source::Target(column),
+                SourceKind::Resampled => Source::Resampled(column),
+                SourceKind::Given => Source::Given,
             }
         })
         .collect()
@@ -51,12 +64,14 @@ pub(crate) fn sources(
 
 /// The predictive pmf (index = days, `0..=observed days`) of `target` under the fit `glm`;
 /// `scenario_rows[d]` is the training season that scenario `d` resamples (cycled when
-/// shorter than `draws`).
+/// shorter than `draws`); `given[d]` is draw `d`'s value of a [`Source::Given`] predictor
+/// (cycled).
 pub(crate) fn case_pmf(
     glm: &FittedGlm,
     sources: &[Source],
     target: &DesignRow,
     scenario_rows: &[&DesignRow],
+    given: &[f64],
     draws: usize,
     rng: &mut impl Rng,
 ) -> Result<Vec<f64>, HindcastError> {
@@ -71,6 +86,10 @@ pub(crate) fn case_pmf(
             *slot = match *source {
                 Source::Target(c) => target.x[c],
                 Source::Resampled(c) => past.x[c],
+                Source::Given => given
+                    .get(d % given.len().max(1))
+                    .copied()
+                    .unwrap_or(f64::NAN),
             };
         }
         // A draw whose mean under- or overflows is skipped, as in the outlook; too many

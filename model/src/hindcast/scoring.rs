@@ -99,7 +99,7 @@ pub struct ModelScores {
     /// The system.
     pub model: ModelKind,
     /// Its count family (fixed by the full-record fit).
-    pub family: Family,
+    pub family: Option<Family>,
     /// Mean CRPS, days.
     pub crps: f64,
     /// Mean RPS over the three tercile categories.
@@ -170,7 +170,7 @@ pub(crate) struct Scored {
 /// Scores every present system of `set` (`kinds` with their families).
 pub(crate) fn score(
     set: &CaseSet,
-    kinds: &[(ModelKind, Family)],
+    kinds: &[(ModelKind, Option<Family>)],
     exceed_days: &[u32],
 ) -> Result<Scored, HindcastError> {
     let climatology = &set.pmfs[ModelKind::Climatology.index()];
@@ -324,7 +324,7 @@ pub(crate) struct Comparison<'a> {
 /// once, so the intervals of competing systems and scores are comparable).
 pub(crate) fn skill(
     scored: &Scored,
-    kinds: &[(ModelKind, Family)],
+    kinds: &[(ModelKind, Option<Family>)],
     comparisons: &[Comparison<'_>],
     bootstrap: &Bootstrap,
 ) -> Vec<SkillReport> {

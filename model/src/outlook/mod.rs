@@ -17,7 +17,9 @@
 //! [`cautions`](mod@cautions).
 
 pub mod cautions;
+pub mod engine;
 pub mod explain;
+
 pub mod mixture;
 pub mod predictive;
 pub mod references;
@@ -28,6 +30,10 @@ use rand_chacha::ChaCha8Rng;
 use serde::Serialize;
 
 pub use cautions::{CautionContext, cautions};
+pub use engine::{
+    DayChance, Engine, EngineChoice, EngineRequest, EngineSummary, WaterForecast, choose, lead,
+};
+
 pub use explain::DriverEffect;
 pub use predictive::{DriverScenarios, predictive_pmf};
 pub use references::{OutlookReferences, Reference, ReferenceKind};
@@ -241,6 +247,17 @@ pub struct Outlook {
     pub cautions: Vec<String>,
     /// Notes on how the outlook was made (fallbacks, dropped predictors).
     pub notes: Vec<String>,
+    /// The engine the distribution comes from.
+    pub engine: Engine,
+    /// Why that engine leads, in one plain sentence.
+    pub engine_reason: String,
+    /// The other engine's answer, when it ran.
+    pub other_engine: Option<EngineSummary>,
+    /// The season's calendar of flood chances (from the water-level engine; empty when it
+    /// could not run).
+    pub days: Vec<DayChance>,
+    /// The water-level engine's fit, for researchers.
+    pub water: Option<crate::water::WaterReport>,
 }
 
 /// Everything an outlook is assembled from.
@@ -405,6 +422,11 @@ pub fn assemble(inputs: OutlookInputs<'_>) -> Result<Outlook, OutlookError> {
             climatology_fallback: climatology.fallback,
         }),
         notes,
+        engine: Engine::Count,
+        engine_reason: String::new(),
+        other_engine: None,
+        days: Vec::new(),
+        water: None,
     })
 }
 

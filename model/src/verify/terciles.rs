@@ -103,6 +103,12 @@ impl TercileEdges {
         })
     }
 
+    /// Edges as reported by [`TercileEdges::edges`] and [`TercileEdges::lower_shares`] (to
+    /// categorise another distribution against the same reference).
+    pub fn from_parts(edges: [u32; 2], lower_share: [f64; 2]) -> Self {
+        Self { edges, lower_share }
+    }
+
     /// The edge counts `[e1, e2]`.
     pub fn edges(&self) -> [u32; 2] {
         self.edges

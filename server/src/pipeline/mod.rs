@@ -217,6 +217,8 @@ fn hindcast_of(
         family: fit::family_request(config.model.family),
         enso_timing: prepared.settings.enso_timing,
         exceed_days: &config.model.exceed_days,
+        enso: prepared.drivers.enso.as_ref(),
+        water: None,
     };
     hindcast::hindcast_season(&setup, &HindcastOptions::default()).map_err(invalid)
 }
