@@ -23,7 +23,7 @@ use chrono::{DateTime, FixedOffset};
 use flate2::bufread::MultiGzDecoder;
 use serde::{Deserialize, Serialize};
 
-use crate::daily::DayTotals;
+use crate::daily::{DayTotals, MonthlyMean};
 
 /// One international foot in metres, exactly (international yard and pound agreement, 1959).
 pub const METRES_PER_FOOT: f64 = 0.3048;
@@ -143,19 +143,6 @@ pub struct LevelSeries {
     pub levels_m: Vec<f64>,
     /// Rows whose level was missing (empty, `NaN` or the sentinel).
     pub missing: u64,
-}
-
-/// The mean level of one calendar month (in local standard time).
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct MonthlyMean {
-    /// The year.
-    pub year: i32,
-    /// The month, 1 = January.
-    pub month: u32,
-    /// Mean of the month's readings, metres.
-    pub mean_m: f64,
-    /// The number of readings averaged.
-    pub readings: u64,
 }
 
 /// What the streaming pass keeps of a level file.

@@ -11,7 +11,7 @@ use tokio::sync::Semaphore;
 use crate::api;
 use crate::auth::Token;
 use crate::catalog::{Catalog, GaugeEntry, Prepared, ServedModel};
-use crate::middleware::etag_of;
+use crate::etag::etag_of;
 use crate::pipeline::{self, GaugeInputs, GaugeResults, PipelineError};
 use crate::store::{self, GaugeRecord, SeriesKey, SeriesRecord, Store, StoreError};
 use crate::upload::{self, CsvKind, UploadError};

@@ -22,7 +22,7 @@ use tidetally_model::outlook::{self as model_outlook, OutlookOptions};
 use tidetally_model::season::Season;
 
 use crate::api;
-use crate::middleware::etag_of;
+use crate::etag::etag_of;
 use crate::store::LevelsRecord;
 use crate::upload::GaugeMeta;
 

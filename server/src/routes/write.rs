@@ -13,7 +13,7 @@ use axum::http::StatusCode;
 
 use crate::api;
 use crate::error::AppError;
-use crate::middleware::etag_of;
+use crate::etag::etag_of;
 use crate::pipeline::PipelineError;
 use crate::state::{AppState, ModelSource, build_entry};
 use crate::store::{self, GaugeRecord, SeriesKey, SeriesRecord};
