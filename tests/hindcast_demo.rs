@@ -7,8 +7,7 @@
 
 use std::path::{Path, PathBuf};
 
-use tidetally_model::fit;
-use tidetally_model::gauge::GaugeConfig;
+use tidetally_model::fit::{self, FilesNeeded, GaugeSources, TideAnalysis};
 use tidetally_model::hindcast::{self, HindcastOptions, ModelKind, VerdictKind};
 
 const GAUGES: [&str; 4] = [
@@ -32,8 +31,9 @@ fn every_demo_gauge_gets_a_hindcast_with_intervals_and_a_verdict() {
         ..HindcastOptions::default()
     };
     for id in GAUGES {
-        let config = GaugeConfig::load(&gauge_file(id)).unwrap();
-        let prepared = fit::prepare(&config).unwrap();
+        let sources = GaugeSources::read(&gauge_file(id), FilesNeeded::All).unwrap();
+        let prepared = fit::prepare(&sources, TideAnalysis::AsConfigured).unwrap();
+        let config = &prepared.config;
         let report = hindcast::hindcast_gauge(&prepared, &options).unwrap();
         assert!(report.not_run.is_empty(), "{id}: {:?}", report.not_run);
         assert_eq!(report.seasons.len(), config.seasons.specs.len(), "{id}");

@@ -12,7 +12,8 @@ use std::collections::HashMap;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
-use tidetally_model::gauge::{self, GaugeConfig, GaugeRecord};
+use tidetally_model::fit::{self, FilesNeeded, GaugeSources};
+use tidetally_model::gauge::LevelRecord;
 
 fn fixture(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -20,13 +21,15 @@ fn fixture(name: &str) -> PathBuf {
         .join(name)
 }
 
-fn load(path: &Path) -> GaugeRecord {
-    let config = GaugeConfig::load(path).expect("fixture gauge validates");
-    gauge::load_record(&config).expect("fixture record loads")
+fn load(path: &Path) -> LevelRecord {
+    let sources = GaugeSources::read(path, FilesNeeded::Levels).expect("fixture files read");
+    fit::record_gauge(&sources)
+        .expect("fixture record loads")
+        .record
 }
 
 /// (label, flood days, observed days, calendar days) of every season row.
-fn summary(record: &GaugeRecord) -> Vec<(String, u32, u32, u32)> {
+fn summary(record: &LevelRecord) -> Vec<(String, u32, u32, u32)> {
     record
         .seasons
         .rows

@@ -29,8 +29,9 @@ use std::sync::OnceLock;
 use tidetally_model::drivers::{
     CategoryProbabilities, EnsoForecast, ForecastContent, ModelMembers,
 };
-use tidetally_model::fit::{self, FitOptions, PreparedGauge};
-use tidetally_model::gauge::GaugeConfig;
+use tidetally_model::fit::{
+    self, FilesNeeded, FitOptions, GaugeSources, PreparedGauge, TideAnalysis,
+};
 use tidetally_model::glm::{self, FamilyRequest, GlmSpec};
 use tidetally_model::outlook::{self, OutlookOptions};
 
@@ -59,8 +60,11 @@ fn prepared(id: &str) -> PreparedGauge {
             .iter()
             .map(|&id| {
                 let path = demo().join("gauges").join(format!("{id}.toml"));
-                let config = GaugeConfig::load(&path).unwrap();
-                (id, fit::prepare(&config).unwrap())
+                let sources = GaugeSources::read(&path, FilesNeeded::All).unwrap();
+                (
+                    id,
+                    fit::prepare(&sources, TideAnalysis::AsConfigured).unwrap(),
+                )
             })
             .collect()
     })[id]

@@ -17,8 +17,9 @@ use std::time::Duration;
 
 use criterion::{Criterion, black_box, criterion_group, criterion_main};
 use rayon::prelude::*;
-use tidetally_model::fit::{self, PreparedGauge, family_request};
-use tidetally_model::gauge::GaugeConfig;
+use tidetally_model::fit::{
+    self, FilesNeeded, GaugeSources, PreparedGauge, TideAnalysis, family_request,
+};
 use tidetally_model::hindcast::{self, HindcastOptions, HindcastSetup};
 
 const GAUGES: [&str; 4] = [
@@ -32,8 +33,8 @@ fn prepared(id: &str) -> PreparedGauge {
     let path = Path::new(env!("CARGO_MANIFEST_DIR"))
         .join("../demo-data/gauges")
         .join(format!("{id}.toml"));
-    let config = GaugeConfig::load(&path).expect("the demo gauge's TOML loads");
-    fit::prepare(&config).expect("the demo gauge prepares")
+    let sources = GaugeSources::read(&path, FilesNeeded::All).expect("the demo gauge's files read");
+    fit::prepare(&sources, TideAnalysis::AsConfigured).expect("the demo gauge prepares")
 }
 
 fn bench(c: &mut Criterion) {

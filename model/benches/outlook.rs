@@ -1,7 +1,7 @@
 //! Fit plus outlook from prepared inputs, on the invented demo coastline.
 //!
 //! Prepared once, outside the timing: each gauge's season table, driver values per season,
-//! driver series, ENSO forecast and tide model (`fit::prepare`). Timed: the DJF gauge model
+//! driver series, ENSO forecast and tide model (`fit::GaugeSources::read`, `fit::prepare`). Timed: the DJF gauge model
 //! (GLM fit by the gauge's family, `auto` = Poisson and NB fits plus the LR test), then the
 //! 2026-DJF outlook with 2,000 draws: driver scenarios, the climatology and trend-only
 //! reference fits, three 2,000-component mixtures (model and both references), terciles,
@@ -15,8 +15,9 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
 use rayon::prelude::*;
-use tidetally_model::fit::{self, FitOptions, PreparedGauge};
-use tidetally_model::gauge::GaugeConfig;
+use tidetally_model::fit::{
+    self, FilesNeeded, FitOptions, GaugeSources, PreparedGauge, TideAnalysis,
+};
 use tidetally_model::outlook::{self, Outlook, OutlookOptions};
 
 const GAUGES: [&str; 4] = [
@@ -30,7 +31,8 @@ fn prepare(id: &str) -> PreparedGauge {
     let path = Path::new(env!("CARGO_MANIFEST_DIR"))
         .join("../demo-data/gauges")
         .join(format!("{id}.toml"));
-    fit::prepare(&GaugeConfig::load(&path).unwrap()).unwrap()
+    let sources = GaugeSources::read(&path, FilesNeeded::All).unwrap();
+    fit::prepare(&sources, TideAnalysis::AsConfigured).unwrap()
 }
 
 fn fit_and_outlook(prepared: &PreparedGauge) -> Outlook {

@@ -8,8 +8,8 @@
 //! at the sampling interval. A flood day is an observed day whose maximum reaches the flood
 //! threshold.
 
-use crate::ingest::MonthlyMean;
 use chrono::{Datelike, NaiveDate};
+use serde::Serialize;
 
 /// The share of a day's expected readings needed to count it as observed, unless the gauge
 /// says otherwise (common practice).
@@ -17,6 +17,19 @@ pub const DEFAULT_MIN_DAY_COMPLETENESS: f64 = 0.75;
 
 /// Days from 0001-01-01 (day 1 in chrono's count) to 1970-01-01.
 const UNIX_EPOCH_DAYS_FROM_CE: i64 = 719_163;
+
+/// The mean level of one calendar month (in local standard time).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct MonthlyMean {
+    /// The year.
+    pub year: i32,
+    /// The month, 1 = January.
+    pub month: u32,
+    /// Mean of the month's readings, metres.
+    pub mean_m: f64,
+    /// The number of readings averaged.
+    pub readings: u64,
+}
 
 /// Errors building daily maxima.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]

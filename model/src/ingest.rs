@@ -23,7 +23,7 @@ use chrono::{DateTime, FixedOffset};
 use flate2::bufread::MultiGzDecoder;
 use serde::{Deserialize, Serialize};
 
-use crate::daily::DayTotals;
+use crate::daily::{DayTotals, MonthlyMean};
 
 /// One international foot in metres, exactly (international yard and pound agreement, 1959).
 pub const METRES_PER_FOOT: f64 = 0.3048;
@@ -145,19 +145,6 @@ pub struct LevelSeries {
     pub missing: u64,
 }
 
-/// The mean level of one calendar month (in local standard time).
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct MonthlyMean {
-    /// The year.
-    pub year: i32,
-    /// The month, 1 = January.
-    pub month: u32,
-    /// Mean of the month's readings, metres.
-    pub mean_m: f64,
-    /// The number of readings averaged.
-    pub readings: u64,
-}
-
 /// What the streaming pass keeps of a level file.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LevelSummary {
@@ -198,6 +185,36 @@ pub fn read_levels(
         rows.push((row.time, row.line, row.level_m.unwrap_or(f64::NAN)));
         Ok(())
     })?;
+    series_of_rows(rows, source_name)
+}
+
+/// Every reading of a level file and its streaming summary (as [`read_levels`] and
+/// [`summarize`] give them) from one decoding of the file.
+pub fn decode_levels(
+    reader: impl BufRead,
+    options: &IngestOptions,
+    source_name: &str,
+) -> Result<(LevelSeries, LevelSummary), IngestError> {
+    let mut pass = SummaryPass {
+        offset: i64::from(options.utc_offset.local_minus_utc()),
+        source_name,
+        ..SummaryPass::default()
+    };
+    let mut rows: Vec<(i64, u64, f64)> = Vec::new();
+    for_each_row(reader, options, source_name, |row| {
+        pass.accept(row)?;
+        rows.push((row.time, row.line, row.level_m.unwrap_or(f64::NAN)));
+        Ok(())
+    })?;
+    let summary = pass.finish()?;
+    Ok((series_of_rows(rows, source_name)?, summary))
+}
+
+/// `(time, line, level or NaN)` rows in file order -> the sorted series, duplicates refused.
+fn series_of_rows(
+    mut rows: Vec<(i64, u64, f64)>,
+    source_name: &str,
+) -> Result<LevelSeries, IngestError> {
     if !rows.windows(2).all(|w| w[0].0 < w[1].0) {
         // Stable sort keeps file order among equal times, so the duplicate error names the
         // earlier line first.
@@ -1255,5 +1272,33 @@ mod tests {
             );
             d += chrono::Duration::days(13);
         }
+    }
+
+    #[test]
+    fn one_decoding_gives_the_series_and_the_summary() {
+        // Out of order, with a missing level and a sentinel, gzip: the combined pass must
+        // agree with the two separate ones.
+        let text = "time,level\n2026-01-01T02:00:00Z,0.3\n2026-01-01T00:00:00Z,0.1\n\
+                    2026-01-01T01:00:00Z,\n2026-01-01T03:00:00Z,-99\n2026-01-02T00:00:00Z,0.5\n";
+        let options = IngestOptions {
+            missing_sentinel: Some(-99.0),
+            ..opts()
+        };
+        for bytes in [text.as_bytes().to_vec(), gzip(text)] {
+            let (series, summary) = decode_levels(bytes.as_slice(), &options, "t.csv").unwrap();
+            assert_eq!(
+                series,
+                read_levels(bytes.as_slice(), &options, "t.csv").unwrap()
+            );
+            assert_eq!(
+                summary,
+                summarize(bytes.as_slice(), &options, "t.csv").unwrap()
+            );
+            assert_eq!(series.times.len(), 3);
+            assert!(!summary.was_sorted);
+        }
+        let dup = "time,level\n2026-01-01T00:00:00Z,1\n2026-01-01T00:00:00Z,2\n";
+        let err = decode_levels(dup.as_bytes(), &opts(), "t.csv").unwrap_err();
+        assert!(err.to_string().contains("t.csv"), "{err}");
     }
 }

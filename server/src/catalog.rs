@@ -27,7 +27,7 @@ impl<T: serde::Serialize> Prepared<T> {
     /// Serializes `value` once.
     pub fn new(value: T) -> Self {
         let body = Bytes::from(serde_json::to_vec(&value).expect("wire types always serialize"));
-        let etag = crate::middleware::etag_of(&body);
+        let etag = crate::etag::etag_of(&body);
         Self { value, body, etag }
     }
 }

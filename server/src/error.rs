@@ -98,7 +98,7 @@ impl AppError {
     }
 
     /// The problem body; `instance` is filled from the request path by the
-    /// [`crate::middleware::problem_shape`] layer.
+    /// problem-shape layer (`middleware::problem_shape`).
     pub fn problem(&self) -> Problem {
         let status = self.status();
         let detail = match self {

@@ -13,6 +13,7 @@ pub mod cli;
 pub mod config;
 mod cors;
 pub mod error;
+pub mod etag;
 pub mod middleware;
 pub mod openapi;
 pub mod pipeline;

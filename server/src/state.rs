@@ -11,8 +11,8 @@ use tokio::sync::Semaphore;
 use crate::api;
 use crate::auth::Token;
 use crate::catalog::{Catalog, GaugeEntry, Prepared, ServedModel};
-use crate::middleware::etag_of;
-use crate::pipeline::{self, GaugeInputs, GaugeResults, PipelineError};
+use crate::etag::etag_of;
+use crate::pipeline::{self, GaugeInputs, GaugeResults, PipelineError, StoredForecast};
 use crate::store::{self, GaugeRecord, SeriesKey, SeriesRecord, Store, StoreError};
 use crate::upload::{self, CsvKind, UploadError};
 
@@ -206,7 +206,10 @@ pub fn load_inputs(conn: &Connection, id: &str) -> Result<Option<GaugeInputs>, S
     };
     let enso_forecasts = store::get_forecasts(conn)?
         .into_iter()
-        .filter_map(|(_, json)| serde_json::from_str::<api::EnsoForecast>(&json).ok())
+        .map(|(season, json)| StoredForecast {
+            season,
+            json: json.into_bytes(),
+        })
         .collect();
     Ok(Some(GaugeInputs {
         levels: store::get_levels(conn, id)?,

@@ -41,8 +41,8 @@ pub use forecast::{
 pub use mjo::{MjoShare, PhaseSet, RmmSeries, RmmState, rmm_state};
 pub use predictors::{DriverInputs, PredictorSettings, SeasonPredictors, season_predictors};
 pub use sea_level::{
-    MonthlyMeanLevel, Projection, SeaLevelSetting, SeaLevelSource, SeasonalCycle, TrendFit,
-    TrendShape, TrendValue, fit_trend,
+    MonthlyMeanLevel, Projection, SeaLevelSetting, SeaLevelSource, SeasonalCycle, TrendError,
+    TrendFit, TrendShape, TrendValue, fit_trend,
 };
 pub use wind::{Coast, Hemisphere, WindSeries, WindStatistic, WindValue};
 

@@ -8,19 +8,26 @@
 //! (Poisson or negative-binomial GLM by [`crate::glm`], the family chosen by its
 //! likelihood-ratio test under `auto`) -> [`GaugeModel`] (coefficients with incidence-rate
 //! ratios per driver step and their 95% intervals, the family test, the fit period).
+//!
+//! Before that, [`prepare`] turns a gauge's [`GaugeSources`] (its TOML text and the bytes of
+//! its files, read by [`GaugeSources::read`] or from the service's store) into a
+//! [`PreparedGauge`], parsing each input exactly once.
 
 mod design;
 mod model;
 mod prepare;
+mod sources;
 
 pub use crate::predictor::{Predictor, UnknownPredictor};
 pub use design::{Design, DesignRow, DriverValue, LeaveOutReason, LeftOut, SeasonData};
 pub use model::{CoefficientReport, FitPeriod, GaugeModel, MIN_SEASONS, fit_design};
 pub(crate) use model::{GlmInput, glm_input};
 pub use prepare::{
-    GaugeDrivers, PrepareError, PreparedGauge, TIDE_MARGIN_M, TidalDriver, driver_of, load_drivers,
-    predictor_settings, prepare, prepare_from, sea_level_from_record, tidal_driver,
+    GaugeDrivers, PrepareError, PreparedGauge, RecordedGauge, TIDE_MARGIN_M, TidalDriver,
+    TideAnalysis, driver_of, predictor_settings, prepare, prepare_from, record_gauge,
+    sea_level_source, tidal_driver,
 };
+pub use sources::{ByteSource, FilesNeeded, GaugeSources, SourceError, TextSource};
 
 use crate::glm::FamilyRequest;
 

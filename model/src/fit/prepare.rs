@@ -1,20 +1,19 @@
-//! Preparing a gauge for fitting and outlooks, once: its season table, every driver's value
-//! per season (with the reason when one is missing), the driver series and forecast kept for
-//! the target season's scenarios, and the last observed day.
-
-use std::fs::File;
-use std::io::BufReader;
-use std::path::Path;
+//! Preparing a gauge for fitting and outlooks, once: from its [`GaugeSources`] (the TOML text
+//! and each file's bytes, each parsed exactly once here) to its decoded readings, season table,
+//! every driver's value per season (with the reason when one is missing), the driver series
+//! and forecast kept for the target season's scenarios, and the last observed day.
 
 use chrono::NaiveDate;
 
 use super::design::{DriverValue, SeasonData};
+use super::sources::{ByteSource, GaugeSources};
 use crate::drivers::{
     self, Coast, Driver, DriverInputs, EnsoForecast, EnsoSeries, MonthlyMeanLevel, PhaseSet,
-    PredictorSettings, RmmSeries, SeaLevelSource, SeasonPredictors, SeasonalCycle, TrendShape,
+    PredictorSettings, RmmSeries, SeaLevelSetting, SeaLevelSource, SeasonPredictors, TrendError,
     WindSeries, WindStatistic,
 };
-use crate::gauge::{self, GaugeConfig, GaugeRecord};
+use crate::gauge::{self, GaugeConfig, LevelRecord};
+use crate::ingest::{self, LevelSeries};
 use crate::predictor::Predictor;
 use crate::season::Season;
 use crate::tide::risk::{RiskConfig, RiskParams};
@@ -29,18 +28,12 @@ pub const TIDE_MARGIN_M: f64 = 0.25;
 /// Why a gauge could not be prepared.
 #[derive(Debug, thiserror::Error)]
 pub enum PrepareError {
-    /// The gauge's level record.
+    /// The gauge TOML, or the record built from its level file.
     #[error(transparent)]
     Gauge(#[from] gauge::GaugeError),
-    /// A driver file that cannot be opened.
-    #[error("{path}: cannot open: {error}")]
-    Io {
-        /// The file.
-        path: String,
-        /// The I/O error.
-        #[source]
-        error: std::io::Error,
-    },
+    /// The level file is unreadable or malformed.
+    #[error(transparent)]
+    Levels(#[from] ingest::IngestError),
     /// A driver file that cannot be parsed.
     #[error(transparent)]
     Driver(#[from] drivers::DriverParseError),
@@ -69,7 +62,8 @@ pub struct GaugeDrivers {
     pub rmm: Option<RmmSeries>,
     /// Along-shore wind at the gauge.
     pub wind: Option<WindSeries>,
-    /// The sea-level trend (fitted to the gauge's own monthly means).
+    /// The gauge's sea-level source (`[sea_level]`: by default a trend fitted to its own
+    /// monthly means); `None` when a trend cannot be fitted.
     pub sea_level: Option<SeaLevelSource>,
     /// The ENSO forecast for a target season.
     pub enso_forecast: Option<EnsoForecast>,
@@ -104,11 +98,16 @@ impl TidalDriver {
     }
 }
 
-/// A gauge ready to fit: season table with drivers, driver series and settings.
+/// A gauge ready to fit: decoded readings, season table with drivers, driver series and
+/// settings.
 #[derive(Debug, Clone)]
 pub struct PreparedGauge {
     /// The gauge's validated description.
     pub config: GaugeConfig,
+    /// Every reading of the level file (times in unix seconds, metres), sorted by time.
+    pub levels: LevelSeries,
+    /// The daily record and season table built from those readings.
+    pub record: LevelRecord,
     /// Every season of the record, with every driver's value or the reason it is missing.
     pub seasons: Vec<SeasonData>,
     /// The drivers' own per-season values (same order as `seasons`), kept for resampling
@@ -127,26 +126,60 @@ pub struct PreparedGauge {
     pub notes: Vec<String>,
 }
 
-/// Prepares a gauge from its TOML description: reads its level record and the driver files
-/// it names (the only place the model opens files).
-pub fn prepare(config: &GaugeConfig) -> Result<PreparedGauge, PrepareError> {
-    let record = gauge::load_record(config)?;
-    let drivers = load_drivers(config, &record)?;
-    prepare_from(config.clone(), &record, drivers)
+/// Whether [`prepare`] runs the harmonic analysis behind the tidal driver.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TideAnalysis {
+    /// When the gauge's model uses the tide.
+    AsConfigured,
+    /// Never (the season history does without the tidal driver).
+    Skip,
 }
 
-fn open(path: &Path) -> Result<BufReader<File>, PrepareError> {
-    File::open(path)
-        .map(BufReader::new)
-        .map_err(|error| PrepareError::Io {
-            path: path.display().to_string(),
-            error,
-        })
+/// A gauge's description with its decoded readings and level record, before any driver.
+#[derive(Debug, Clone)]
+pub struct RecordedGauge {
+    /// The gauge's validated description.
+    pub config: GaugeConfig,
+    /// Every reading of the level file, sorted by time.
+    pub levels: LevelSeries,
+    /// The daily record and season table.
+    pub record: LevelRecord,
 }
 
-/// The gauge's sea-level trend: a linear least-squares fit of the record's monthly means
-/// (seasonal cycle fitted as nuisance terms); `None` when the record is too short to fit one.
-pub fn sea_level_from_record(record: &GaugeRecord) -> Option<SeaLevelSource> {
+/// Validates the gauge TOML and decodes the level file (once), building the level record
+/// from the decoded readings.
+pub fn record_gauge(sources: &GaugeSources) -> Result<RecordedGauge, PrepareError> {
+    let config = sources.config()?;
+    let name = &sources.levels.name;
+    let (levels, summary) = ingest::decode_levels(
+        sources.levels.bytes.as_slice(),
+        &config.ingest_options(),
+        name,
+    )?;
+    let record = LevelRecord::new(&config, summary, name)?;
+    Ok(RecordedGauge {
+        config,
+        levels,
+        record,
+    })
+}
+
+/// Prepares a gauge from its sources, parsing each exactly once: the TOML, the level file,
+/// each driver series and the ENSO forecast.
+pub fn prepare(sources: &GaugeSources, tide: TideAnalysis) -> Result<PreparedGauge, PrepareError> {
+    let recorded = record_gauge(sources)?;
+    let drivers = parse_drivers(sources, &recorded, tide)?;
+    let mut prepared = prepare_from(recorded, drivers)?;
+    prepared.set_enso_forecast(sources.enso_forecast.as_ref())?;
+    Ok(prepared)
+}
+
+/// The gauge's sea-level source from its `[sea_level]` setting; a trend is fitted to the
+/// record's monthly means. A trend that cannot be fitted gives `None` with the reason.
+pub fn sea_level_source(
+    setting: &SeaLevelSetting,
+    record: &LevelRecord,
+) -> Result<SeaLevelSource, TrendError> {
     let months: Vec<MonthlyMeanLevel> = record
         .summary
         .monthly
@@ -158,50 +191,53 @@ pub fn sea_level_from_record(record: &GaugeRecord) -> Option<SeaLevelSource> {
             readings: u32::try_from(m.readings).unwrap_or(u32::MAX),
         })
         .collect();
-    drivers::fit_trend(&months, TrendShape::Linear, SeasonalCycle::default())
-        .ok()
-        .map(SeaLevelSource::Fitted)
+    setting.resolve(&months)
 }
 
-/// Reads the driver files a gauge names, and fits its sea-level trend (linear least squares
-/// on the record's monthly means).
-pub fn load_drivers(
-    config: &GaugeConfig,
-    record: &GaugeRecord,
+/// Parses the driver series of `sources` (the forecast is set by
+/// [`PreparedGauge::set_enso_forecast`]), resolves the sea-level source and, when asked,
+/// analyses the tide of the decoded readings.
+fn parse_drivers(
+    sources: &GaugeSources,
+    recorded: &RecordedGauge,
+    tide: TideAnalysis,
 ) -> Result<GaugeDrivers, PrepareError> {
-    let files = &config.drivers;
-    let name = |p: &Path| p.display().to_string();
-    let enso = match &files.enso {
-        Some(p) => Some(EnsoSeries::parse(open(p)?, &name(p))?),
+    let config = &recorded.config;
+    let enso = match &sources.enso {
+        Some(s) => Some(EnsoSeries::parse(s.bytes.as_slice(), &s.name)?),
         None => None,
     };
-    let rmm = match &files.rmm {
-        Some(p) => Some(RmmSeries::parse(open(p)?, &name(p))?),
+    let rmm = match &sources.rmm {
+        Some(s) => Some(RmmSeries::parse(s.bytes.as_slice(), &s.name)?),
         None => None,
     };
-    let wind = match &files.wind {
-        Some(p) => Some(WindSeries::parse(open(p)?, &name(p), config.utc_offset)?),
+    let wind = match &sources.wind {
+        Some(s) => Some(WindSeries::parse(
+            s.bytes.as_slice(),
+            &s.name,
+            config.utc_offset,
+        )?),
         None => None,
     };
     let mut notes = Vec::new();
-    let enso_forecast = match &files.enso_forecast {
-        Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|error| PrepareError::Io {
-                path: name(p),
-                error,
-            })?;
-            let forecast = EnsoForecast::parse(text.as_bytes(), &name(p), &config.seasons.specs)?;
-            if let Some(note) = &forecast.note {
-                notes.push(format!("ENSO forecast note: {note}"));
-            }
-            Some(forecast)
+    let sea_level = match sea_level_source(&config.sea_level, &recorded.record) {
+        Ok(source) => Some(source),
+        Err(TrendError::TooFewMonths { .. }) => {
+            notes.push("the level record is too short to fit a sea-level trend".to_owned());
+            None
         }
-        None => None,
+        Err(e) => {
+            notes.push(format!("no sea-level trend: {e}"));
+            None
+        }
     };
-    let sea_level = sea_level_from_record(record);
-    let tide = if config.model.predictors.contains(&Predictor::Tide) {
-        let series = gauge::load_levels(config)?;
-        Some(tidal_driver(config, &series.times, &series.levels_m)?)
+    let uses_tide = config.model.predictors.contains(&Predictor::Tide);
+    let tide = if uses_tide && tide == TideAnalysis::AsConfigured {
+        Some(tidal_driver(
+            config,
+            &recorded.levels.times,
+            &recorded.levels.levels_m,
+        )?)
     } else {
         None
     };
@@ -210,7 +246,7 @@ pub fn load_drivers(
         rmm,
         wind,
         sea_level,
-        enso_forecast,
+        enso_forecast: None,
         tide,
         notes,
     })
@@ -279,12 +315,16 @@ pub fn driver_of(p: Predictor) -> Option<Driver> {
     }
 }
 
-/// Prepares a gauge from an already read record and driver series (e.g. uploads).
+/// Prepares a recorded gauge with already parsed driver series.
 pub fn prepare_from(
-    config: GaugeConfig,
-    record: &GaugeRecord,
+    recorded: RecordedGauge,
     drivers: GaugeDrivers,
 ) -> Result<PreparedGauge, PrepareError> {
+    let RecordedGauge {
+        config,
+        levels,
+        record,
+    } = recorded;
     let settings = predictor_settings(&config)?;
     let inputs = DriverInputs {
         enso: drivers.enso.as_ref(),
@@ -292,10 +332,7 @@ pub fn prepare_from(
         wind: drivers.wind.as_ref(),
         sea_level: drivers.sea_level.as_ref(),
     };
-    let mut notes = drivers.notes.clone();
-    if drivers.sea_level.is_none() {
-        notes.push("the level record is too short to fit a sea-level trend".to_owned());
-    }
+    let notes = drivers.notes.clone();
     let mut seasons = Vec::with_capacity(record.seasons.rows.len());
     let mut season_predictors = Vec::with_capacity(record.seasons.rows.len());
     for row in &record.seasons.rows {
@@ -357,6 +394,8 @@ pub fn prepare_from(
     };
     Ok(PreparedGauge {
         config,
+        levels,
+        record,
         seasons,
         season_predictors,
         drivers,
@@ -385,7 +424,33 @@ fn upcoming_seasons(config: &GaugeConfig, last: NaiveDate, years: i32) -> Vec<Se
     out
 }
 
+/// The start of the note that carries an ENSO forecast's free-text note.
+const FORECAST_NOTE: &str = "ENSO forecast note: ";
+
 impl PreparedGauge {
+    /// Parses `forecast` (read against the gauge's seasons) as the gauge's ENSO forecast,
+    /// replacing any earlier one; its free-text note goes into [`PreparedGauge::notes`].
+    /// `None` leaves the gauge without a forecast.
+    pub fn set_enso_forecast(&mut self, forecast: Option<&ByteSource>) -> Result<(), PrepareError> {
+        let parsed = match forecast {
+            Some(s) => Some(EnsoForecast::parse(
+                s.bytes.as_slice(),
+                &s.name,
+                &self.config.seasons.specs,
+            )?),
+            None => None,
+        };
+        self.notes.retain(|n| !n.starts_with(FORECAST_NOTE));
+        self.drivers.notes.retain(|n| !n.starts_with(FORECAST_NOTE));
+        if let Some(note) = parsed.as_ref().and_then(|f| f.note.as_ref()) {
+            let note = format!("{FORECAST_NOTE}{note}");
+            self.drivers.notes.push(note.clone());
+            self.notes.push(note);
+        }
+        self.drivers.enso_forecast = parsed;
+        Ok(())
+    }
+
     /// The model predictors the gauge's TOML asks for.
     pub fn requested_predictors(&self) -> Vec<Predictor> {
         self.config.model.predictors.clone()
@@ -431,5 +496,118 @@ impl PreparedGauge {
     /// The season data of `label`, if the record has it.
     pub fn season(&self, label: &str) -> Option<&SeasonData> {
         self.seasons.iter().find(|s| s.season.label() == label)
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
+mod tests {
+    use super::*;
+    use crate::fit::TextSource;
+
+    /// `days` days of six-hourly readings (invented: a flat 0.2 m with a daily bump).
+    fn levels_csv(days: i64) -> Vec<u8> {
+        let start = chrono::NaiveDate::from_ymd_opt(2020, 12, 1)
+            .unwrap()
+            .and_hms_opt(0, 0, 0)
+            .unwrap()
+            .and_utc()
+            .timestamp();
+        let mut text = String::from("time,level\n");
+        for k in 0..(4 * days) {
+            let t = chrono::DateTime::from_timestamp(start + k * 6 * 3600, 0).unwrap();
+            let level = if k % 4 == 2 { 0.6 } else { 0.2 };
+            text.push_str(&format!("{},{level}\n", t.to_rfc3339()));
+        }
+        text.into_bytes()
+    }
+
+    fn sources(extra_toml: &str) -> GaugeSources {
+        sources_of(730, extra_toml)
+    }
+
+    fn sources_of(days: i64, extra_toml: &str) -> GaugeSources {
+        let toml = format!(
+            "id = \"g1\"\nname = \"G\"\nlatitude = 10\nlongitude = 20\ndatum = \"MHHW\"\n\
+             flood_threshold_m = 0.5\nutc_offset = \"+00:00\"\ncoast_orientation_deg = 0\n\
+             [levels]\nfile = \"levels.csv\"\nunits = \"m\"\n\
+             [model]\npredictors = [\"sea_level\"]\n{extra_toml}"
+        );
+        GaugeSources {
+            toml: TextSource {
+                name: "g1.toml".into(),
+                text: toml,
+            },
+            base_dir: std::path::PathBuf::new(),
+            levels: ByteSource {
+                name: "levels of g1".into(),
+                bytes: levels_csv(days),
+            },
+            enso: None,
+            rmm: None,
+            wind: None,
+            enso_forecast: None,
+        }
+    }
+
+    #[test]
+    fn the_sea_level_setting_reaches_every_season() {
+        let toml = "[sea_level]\nsource = \"rate\"\nrate_m_per_yr = 0.01\n\
+                    reference_year = 2020.0\nreference_level_m = 0.3\n";
+        let prepared = prepare(&sources(toml), TideAnalysis::AsConfigured).unwrap();
+        assert_eq!(prepared.levels.times.len(), 4 * 730);
+        assert!(!prepared.seasons.is_empty());
+        for season in &prepared.seasons {
+            let Some(DriverValue::Known(v)) = season.driver(Predictor::SeaLevel) else {
+                panic!("{}: no sea-level value", season.season);
+            };
+            let expected = 0.3 + 0.01 * (season.season.mid_year() - 2020.0) - 0.5;
+            assert!((v - expected).abs() < 1e-12, "{}", season.season);
+        }
+        // Ten months of monthly means are too few for the default trend: said, not hidden.
+        let prepared = prepare(&sources_of(300, ""), TideAnalysis::AsConfigured).unwrap();
+        assert!(prepared.drivers.sea_level.is_none());
+        assert!(prepared.notes.iter().any(|n| n.contains("too short")));
+    }
+
+    #[test]
+    fn the_forecast_and_its_note_are_parsed_once_and_replaced_whole() {
+        let mut s = sources("");
+        s.enso_forecast = Some(ByteSource {
+            name: "forecast.json".into(),
+            bytes: br#"{"season": "2022-DJF", "issued": "2022-11-15", "note": "trial run",
+                "models": [{"name": "a", "members": [0.5, 0.7]}]}"#
+                .to_vec(),
+        });
+        let mut prepared = prepare(&s, TideAnalysis::AsConfigured).unwrap();
+        let forecast = prepared.drivers.enso_forecast.as_ref().unwrap();
+        assert_eq!(forecast.season.label(), "2022-DJF");
+        assert!(
+            prepared
+                .notes
+                .contains(&"ENSO forecast note: trial run".to_owned())
+        );
+        prepared.set_enso_forecast(None).unwrap();
+        assert!(prepared.drivers.enso_forecast.is_none());
+        assert!(!prepared.notes.iter().any(|n| n.contains("trial run")));
+    }
+
+    #[test]
+    fn errors_name_the_source() {
+        let mut s = sources("");
+        s.levels.bytes.extend_from_slice(b"not a time,1\n");
+        let err = prepare(&s, TideAnalysis::AsConfigured)
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("levels of g1"), "{err}");
+        let mut s = sources("");
+        s.enso_forecast = Some(ByteSource {
+            name: "forecast.json".into(),
+            bytes: b"{".to_vec(),
+        });
+        let err = prepare(&s, TideAnalysis::AsConfigured)
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("forecast.json"), "{err}");
     }
 }

@@ -7,7 +7,7 @@
 //! Nodal factors f and phases u are Schureman's (1958) closed-form expressions in the
 //! inclination I of the moon's orbit to the equator and the angles nu, xi, nu', 2nu''.
 
-use super::constituents::{Constituent, Nodal};
+use super::constituents::{Constituent, Nodal, NodalBasis};
 
 /// Unix seconds of 1899-12-31 12:00 UT, the origin of the astronomical series.
 const ORIGIN_UNIX_SECONDS: f64 = -2_209_032_000.0;
@@ -79,48 +79,6 @@ impl Astro {
             .sum();
         wrap360(sum + c.offset_deg)
     }
-}
-
-/// The basic lunar terms whose nodal factors Schureman (1958) gives in closed form; other
-/// lunar constituents take one of these or a product of them.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum NodalBasis {
-    /// Lunar monthly, Schureman formula 73.
-    Mm,
-    /// Lunar fortnightly, formula 74.
-    Mf,
-    /// Lunar diurnal O1 (and Q1, 2Q1, rho1, sigma1), formula 75.
-    O1,
-    /// Lunar diurnal J1 (and chi1, theta1), formula 76.
-    J1,
-    /// Lunar diurnal OO1, formula 77.
-    OO1,
-    /// Lunisolar diurnal K1, formula 227.
-    K1,
-    /// Lunar semidiurnal M2 (and N2, 2N2, nu2, mu2, lambda2), formula 78.
-    M2,
-    /// Lunisolar semidiurnal K2, formula 235.
-    K2,
-    /// Lunar elliptic L2, formula 215.
-    L2,
-    /// Lunar terdiurnal M3, formula 149.
-    M3,
-}
-
-impl NodalBasis {
-    /// Every basic term, in declaration order.
-    pub const ALL: [NodalBasis; 10] = [
-        NodalBasis::Mm,
-        NodalBasis::Mf,
-        NodalBasis::O1,
-        NodalBasis::J1,
-        NodalBasis::OO1,
-        NodalBasis::K1,
-        NodalBasis::M2,
-        NodalBasis::K2,
-        NodalBasis::L2,
-        NodalBasis::M3,
-    ];
 }
 
 /// The node-dependent angles of Schureman (1958), degrees, for one node longitude N, with

@@ -7,8 +7,6 @@
 //! midnight the offsets are the usual ones of Foreman (1977): K1 +90 deg, O1 -90 deg and so on,
 //! equivalent to Schureman's (1958) Table 2 arguments written with T counted from noon.
 
-use super::astro::NodalBasis;
-
 /// Rates of the astronomical variables in degrees per hour, from the linear terms of the
 /// mean-longitude polynomials (Schureman 1958, Table 1; the same series Foreman 1977 uses).
 pub mod rates {
@@ -24,6 +22,48 @@ pub mod rates {
     pub const P1: f64 = 0.000_047_068_4 / 24.0;
     /// Mean lunar time, tau = T + h - s (T advances 15 deg/h).
     pub const TAU: f64 = 15.0 + H - S;
+}
+
+/// The basic lunar terms whose nodal factors Schureman (1958) gives in closed form; other
+/// lunar constituents take one of these or a product of them.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum NodalBasis {
+    /// Lunar monthly, Schureman formula 73.
+    Mm,
+    /// Lunar fortnightly, formula 74.
+    Mf,
+    /// Lunar diurnal O1 (and Q1, 2Q1, rho1, sigma1), formula 75.
+    O1,
+    /// Lunar diurnal J1 (and chi1, theta1), formula 76.
+    J1,
+    /// Lunar diurnal OO1, formula 77.
+    OO1,
+    /// Lunisolar diurnal K1, formula 227.
+    K1,
+    /// Lunar semidiurnal M2 (and N2, 2N2, nu2, mu2, lambda2), formula 78.
+    M2,
+    /// Lunisolar semidiurnal K2, formula 235.
+    K2,
+    /// Lunar elliptic L2, formula 215.
+    L2,
+    /// Lunar terdiurnal M3, formula 149.
+    M3,
+}
+
+impl NodalBasis {
+    /// Every basic term, in declaration order.
+    pub const ALL: [NodalBasis; 10] = [
+        NodalBasis::Mm,
+        NodalBasis::Mf,
+        NodalBasis::O1,
+        NodalBasis::J1,
+        NodalBasis::OO1,
+        NodalBasis::K1,
+        NodalBasis::M2,
+        NodalBasis::K2,
+        NodalBasis::L2,
+        NodalBasis::M3,
+    ];
 }
 
 /// How a constituent's nodal factor f and phase u are formed.

@@ -3,7 +3,9 @@
 
 use anyhow::Context;
 use serde::Serialize;
-use tidetally_model::gauge::{self, GaugeConfig, GaugeRecord};
+use tidetally_model::fit::{FilesNeeded, GaugeSources};
+use tidetally_model::gauge::{GaugeConfig, LevelRecord};
+use tidetally_model::ingest;
 use tidetally_model::season::SeasonRow;
 
 /// The JSON printed by `counts`.
@@ -53,7 +55,7 @@ impl From<&SeasonRow> for SeasonOutput {
     }
 }
 
-fn output<'a>(config: &'a GaugeConfig, record: &GaugeRecord) -> CountsOutput<'a> {
+fn output<'a>(config: &'a GaugeConfig, record: &LevelRecord) -> CountsOutput<'a> {
     CountsOutput {
         gauge: &config.id,
         name: &config.name,
@@ -82,10 +84,18 @@ pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
     }
 }
 
-/// Loads the gauge description and builds its record.
-fn load(args: &super::GaugeArgs) -> anyhow::Result<(GaugeConfig, GaugeRecord)> {
-    let config = GaugeConfig::load(&args.gauge)?;
-    let record = gauge::load_record(&config)?;
+/// Loads the gauge description and builds its record with the streaming summary of its
+/// level file (the readings themselves are not kept).
+fn load(args: &super::GaugeArgs) -> anyhow::Result<(GaugeConfig, LevelRecord)> {
+    let sources = GaugeSources::read(&args.gauge, FilesNeeded::Levels)?;
+    let config = sources.config()?;
+    let levels = &sources.levels;
+    let summary = ingest::summarize(
+        levels.bytes.as_slice(),
+        &config.ingest_options(),
+        &levels.name,
+    )?;
+    let record = LevelRecord::new(&config, summary, &levels.name)?;
     Ok((config, record))
 }
 

@@ -1,9 +1,7 @@
 //! `tidetally fit --gauge FILE`: the gauge's count model of each season name, as JSON.
 
-use anyhow::Context;
 use serde::Serialize;
 use tidetally_model::fit::{self, FitOptions, GaugeModel, LeftOut};
-use tidetally_model::gauge::GaugeConfig;
 
 /// The JSON printed by `fit`.
 #[derive(Debug, Serialize)]
@@ -31,9 +29,8 @@ pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
     if args.csv {
         anyhow::bail!("`fit` prints JSON only; --csv applies to `counts`");
     }
-    let config = GaugeConfig::load(&args.gauge)?;
-    let prepared = fit::prepare(&config)
-        .with_context(|| format!("preparing gauge {}", args.gauge.display()))?;
+    let prepared = super::prepare_gauge(&args.gauge)?;
+    let config = &prepared.config;
     let mut models = Vec::new();
     let mut not_fitted = Vec::new();
     for spec in &config.seasons.specs {

@@ -221,6 +221,18 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
     }
 }
 
+/// Reads a gauge TOML and every file it names, and prepares the gauge (the `fit`,
+/// `hindcast` and `outlook` commands).
+pub(crate) fn prepare_gauge(
+    path: &std::path::Path,
+) -> anyhow::Result<tidetally_model::fit::PreparedGauge> {
+    use anyhow::Context;
+    use tidetally_model::fit::{self, FilesNeeded, GaugeSources, TideAnalysis};
+    let sources = GaugeSources::read(path, FilesNeeded::All)?;
+    fit::prepare(&sources, TideAnalysis::AsConfigured)
+        .with_context(|| format!("preparing gauge {}", path.display()))
+}
+
 /// Prints a value as pretty JSON on stdout.
 pub(crate) fn print_json<T: serde::Serialize>(value: &T) -> anyhow::Result<()> {
     let mut text = serde_json::to_string_pretty(value)?;

@@ -3,16 +3,13 @@
 
 use anyhow::Context;
 use tidetally_model::fit::{self, FitOptions};
-use tidetally_model::gauge::GaugeConfig;
 use tidetally_model::outlook::{self, OutlookOptions};
 use tidetally_model::season::Season;
 
 pub(super) fn run(args: super::OutlookArgs) -> anyhow::Result<()> {
-    let config = GaugeConfig::load(&args.gauge)?;
-    let prepared = fit::prepare(&config)
-        .with_context(|| format!("preparing gauge {}", args.gauge.display()))?;
+    let prepared = super::prepare_gauge(&args.gauge)?;
     let target = match &args.season {
-        Some(label) => Season::parse(label, &config.seasons.specs)?,
+        Some(label) => Season::parse(label, &prepared.config.seasons.specs)?,
         None => prepared.default_target().context(
             "the level record has no observed day, so there is no default season; give --season",
         )?,

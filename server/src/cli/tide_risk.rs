@@ -5,7 +5,9 @@
 use anyhow::Context;
 use chrono::{DateTime, NaiveDate};
 use serde::Serialize;
-use tidetally_model::gauge::{self, GaugeConfig};
+use tidetally_model::fit::{FilesNeeded, GaugeSources};
+use tidetally_model::gauge::GaugeConfig;
+use tidetally_model::ingest;
 use tidetally_model::season::{Season, season_of};
 use tidetally_model::tide::{AnalysisParams, RiskCalendar, RiskParams};
 
@@ -40,8 +42,14 @@ pub(super) fn run(args: TideRiskArgs) -> anyhow::Result<()> {
 }
 
 fn risk_output(args: &TideRiskArgs) -> anyhow::Result<RiskJson> {
-    let config = GaugeConfig::load(&args.gauge)?;
-    let series = gauge::load_levels(&config)?;
+    let sources = GaugeSources::read(&args.gauge, FilesNeeded::Levels)?;
+    let config = sources.config()?;
+    let levels = &sources.levels;
+    let series = ingest::read_levels(
+        levels.bytes.as_slice(),
+        &config.ingest_options(),
+        &levels.name,
+    )?;
     let last = *series
         .times
         .last()

@@ -11,7 +11,7 @@ use crate::api;
 pub const SHOWN_SCHEME: &str = "leave_one_year_out";
 
 /// What identifies one issued outlook.
-pub struct Issue<'a> {
+pub struct IssueStamp<'a> {
     /// Issue time (RFC 3339).
     pub issued_at: &'a str,
     /// Model version.
@@ -27,7 +27,11 @@ fn family_name(family: Family) -> &'static str {
 
 /// A model outlook as served, with the skill of its season name and the service's standard
 /// cautions appended.
-pub fn outlook(o: &model_outlook::Outlook, skill: api::Skill, issue: &Issue<'_>) -> api::Outlook {
+pub fn outlook(
+    o: &model_outlook::Outlook,
+    skill: api::Skill,
+    issue: &IssueStamp<'_>,
+) -> api::Outlook {
     api::Outlook {
         gauge: o.gauge_id.clone(),
         season: o.season.clone(),

@@ -16,17 +16,16 @@ use std::collections::BTreeMap;
 use serde::{Deserialize, Serialize};
 
 use tidetally_model::drivers::EnsoCategory;
-use tidetally_model::fit::{self, FitOptions, PreparedGauge};
+use tidetally_model::fit::{self, FitOptions, PreparedGauge, TideAnalysis};
 use tidetally_model::hindcast::{self, HindcastOptions, HindcastSetup, SeasonHindcast};
 use tidetally_model::outlook::{self as model_outlook, OutlookOptions};
 use tidetally_model::season::Season;
 
 use crate::api;
-use crate::middleware::etag_of;
+use crate::etag::etag_of;
 use crate::store::LevelsRecord;
 use crate::upload::GaugeMeta;
 
-pub use prepare::{TideAnalysis, prepare_gauge};
 pub use verification::verify_issued;
 
 /// Why a pipeline step gave no result.
@@ -68,8 +67,18 @@ pub struct GaugeInputs {
     pub rmm: Option<Vec<u8>>,
     /// The gauge's wind CSV.
     pub wind: Option<Vec<u8>>,
-    /// Stored ENSO forecasts, by target season.
-    pub enso_forecasts: Vec<api::EnsoForecast>,
+    /// Stored ENSO forecasts (one per target season).
+    pub enso_forecasts: Vec<StoredForecast>,
+}
+
+/// A stored ENSO forecast: its target season's label and its JSON body as uploaded (the
+/// model parses it, free-text `note` included, when a run uses it).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct StoredForecast {
+    /// The target season's label, e.g. `2026-DJF`.
+    pub season: String,
+    /// The JSON body as uploaded.
+    pub json: Vec<u8>,
 }
 
 /// A gauge's fitted results as served: stored as JSON in the store after each refit.
@@ -91,21 +100,26 @@ pub struct GaugeResults {
 /// joined (the tidal driver, a harmonic analysis of the whole record, is left out here). When
 /// the driver series cannot be read, the counts are still served without predictors.
 pub fn season_history(inputs: &GaugeInputs) -> Result<api::SeasonHistory, PipelineError> {
-    let config = prepare::gauge_config(inputs)?;
-    let rows = match prepare_gauge(inputs, TideAnalysis::Skip) {
-        Ok(prepared) => return Ok(history_of(&prepared)),
+    let sources = prepare::sources(inputs, None)?;
+    match fit::prepare(&sources, TideAnalysis::Skip) {
+        Ok(prepared) => Ok(history_of(&prepared)),
         Err(why) => {
             tracing::warn!(gauge = %inputs.meta.id, reason = %why, "season history without drivers");
-            let record = prepare::gauge_record(inputs, &config)?;
-            record.seasons.rows.iter().map(season_row).collect()
+            let recorded = fit::record_gauge(&sources).map_err(invalid)?;
+            Ok(api::SeasonHistory {
+                gauge: recorded.config.id.clone(),
+                datum: recorded.config.datum.clone(),
+                flood_threshold_m: recorded.config.flood_threshold_m,
+                seasons: recorded
+                    .record
+                    .seasons
+                    .rows
+                    .iter()
+                    .map(season_row)
+                    .collect(),
+            })
         }
-    };
-    Ok(api::SeasonHistory {
-        gauge: config.id.clone(),
-        datum: config.datum.clone(),
-        flood_threshold_m: config.flood_threshold_m,
-        seasons: rows,
-    })
+    }
 }
 
 /// The season history of a prepared gauge, predictors joined.
@@ -191,8 +205,7 @@ fn model_version(inputs: &GaugeInputs) -> String {
         parts.push(series.as_deref().map_or_else(String::new, etag_of));
     }
     for forecast in &inputs.enso_forecasts {
-        let json = serde_json::to_vec(forecast).expect("wire types always serialize");
-        parts.push(etag_of(&json));
+        parts.push(etag_of(&forecast.json));
     }
     let digest = etag_of(parts.join("|").as_bytes());
     format!("{}+{}", env!("CARGO_PKG_VERSION"), digest.trim_matches('"'))
@@ -223,16 +236,14 @@ fn hindcast_of(
     hindcast::hindcast_season(&setup, &HindcastOptions::default()).map_err(invalid)
 }
 
-/// The outlook of `target` from a prepared gauge (its ENSO forecast picked for `target`),
+/// The outlook of `target` from a prepared gauge (holding the ENSO forecast for `target`),
 /// with `skill` attached; and the driver values behind it.
 fn issue_outlook(
-    prepared: &mut PreparedGauge,
-    inputs: &GaugeInputs,
+    prepared: &PreparedGauge,
     target: &Season,
     skill: api::Skill,
-    issue: &convert::Issue<'_>,
+    issue: &convert::IssueStamp<'_>,
 ) -> Result<(api::Outlook, serde_json::Value), PipelineError> {
-    prepare::with_forecast_for(prepared, inputs, target)?;
     let model =
         fit::fit_gauge(prepared, target.spec().name(), &FitOptions::default()).map_err(invalid)?;
     let outlook = model_outlook::build(&model, prepared, target, &OutlookOptions::default())
@@ -246,8 +257,16 @@ fn issue_outlook(
 /// Fits the gauge's model, scores it out of sample and issues the outlook of its default
 /// target season (the first season after the record).
 pub fn build_gauge(inputs: &GaugeInputs) -> Result<GaugeResults, PipelineError> {
-    prepare::require_levels(inputs)?;
-    build_from(inputs, prepare_gauge(inputs, TideAnalysis::AsConfigured)?)
+    build_from(inputs, prepare_stored(inputs, None)?)
+}
+
+/// The gauge prepared from its stored inputs (with the stored ENSO forecast for `target`).
+fn prepare_stored(
+    inputs: &GaugeInputs,
+    target: Option<&Season>,
+) -> Result<PreparedGauge, PipelineError> {
+    let sources = prepare::sources(inputs, target)?;
+    fit::prepare(&sources, TideAnalysis::AsConfigured).map_err(invalid)
 }
 
 /// As [`build_gauge`], with the season history from the same preparation (one read of the
@@ -258,9 +277,7 @@ pub fn build_with_history(
     Result<api::SeasonHistory, PipelineError>,
     Result<GaugeResults, PipelineError>,
 ) {
-    let prepared = prepare::require_levels(inputs)
-        .and_then(|_| prepare_gauge(inputs, TideAnalysis::AsConfigured));
-    match prepared {
+    match prepare_stored(inputs, None) {
         Ok(prepared) => (Ok(history_of(&prepared)), build_from(inputs, prepared)),
         Err(why) => (season_history(inputs), Err(why)),
     }
@@ -279,13 +296,16 @@ fn build_from(
     let season_name = target.spec().name().to_owned();
     let model_version = model_version(inputs);
     let fitted_at = crate::store::now_rfc3339();
-    let issue = convert::Issue {
+    let issue = convert::IssueStamp {
         issued_at: &fitted_at,
         model_version: &model_version,
     };
     let season_hindcast = hindcast_of(&prepared, &season_name)?;
     let skill = convert::skill(&season_hindcast);
-    let (outlook, drivers) = issue_outlook(&mut prepared, inputs, &target, skill, &issue)?;
+    prepared
+        .set_enso_forecast(prepare::forecast_for(inputs, &target).as_ref())
+        .map_err(invalid)?;
+    let (outlook, drivers) = issue_outlook(&prepared, &target, skill, &issue)?;
     let label = target.label();
     Ok(GaugeResults {
         hindcast: convert::hindcast(&inputs.meta.id, &season_hindcast, &model_version),
@@ -305,7 +325,7 @@ pub fn outlook_for_season(
     target: &Season,
 ) -> Result<api::Outlook, PipelineError> {
     let season_name = target.spec().name();
-    let mut prepared = prepare_gauge(inputs, TideAnalysis::AsConfigured)?;
+    let prepared = prepare_stored(inputs, Some(target))?;
     let known = results
         .outlooks
         .values()
@@ -318,11 +338,11 @@ pub fn outlook_for_season(
             Err(why) => convert::skill_not_measured(season_name, &why.to_string()),
         },
     };
-    let issue = convert::Issue {
+    let issue = convert::IssueStamp {
         issued_at: &results.fitted_at,
         model_version: &results.model_version,
     };
-    issue_outlook(&mut prepared, inputs, target, skill, &issue).map(|(o, _)| o)
+    issue_outlook(&prepared, target, skill, &issue).map(|(o, _)| o)
 }
 
 #[cfg(test)]

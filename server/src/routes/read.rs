@@ -10,6 +10,7 @@ use axum::extract::{Path, Query, State};
 use axum::http::{HeaderMap, HeaderValue, header};
 use axum::response::{IntoResponse, Response};
 use serde::Deserialize;
+use tidetally_model::season::Season;
 
 use crate::api;
 use crate::catalog::{GaugeEntry, OnDemand, Prepared, ServedModel};
@@ -180,20 +181,32 @@ pub async fn outlook(
         .model
         .as_ref()
         .map_err(|e| AppError::Pipeline(e.clone()))?;
-    let label = match &query.season {
-        Some(text) => query::parse_season(text, &entry.meta.seasons)
-            .map_err(AppError::BadRequest)?
-            .label(),
-        None => first_served_season(model.outlooks.keys(), &entry)
-            .ok_or_else(|| AppError::NotFound(format!("gauge {id:?} serves no outlook")))?,
+    // The season is parsed once; an outlook not issued by the fit is computed for it.
+    let (label, target) = match &query.season {
+        Some(text) => {
+            let target =
+                query::parse_season(text, &entry.meta.seasons).map_err(AppError::BadRequest)?;
+            (target.label(), Some(target))
+        }
+        None => (
+            first_served_season(model.outlooks.keys(), &entry)
+                .ok_or_else(|| AppError::NotFound(format!("gauge {id:?} serves no outlook")))?,
+            None,
+        ),
     };
     let on_demand;
-    let served = match model.outlooks.get(&label) {
-        Some(served) => served,
-        None => {
+    let served = match (model.outlooks.get(&label), target) {
+        (Some(served), _) => served,
+        (None, target) => {
             on_demand = match model.cached(&label) {
                 Some(cached) => cached,
-                None => outlook_on_demand(&state, &entry, Arc::clone(model), &label).await?,
+                None => {
+                    // Without `?season=` the label is one the fit served.
+                    let target = target.ok_or_else(|| {
+                        AppError::NotFound(format!("gauge {id:?} serves no outlook for {label}"))
+                    })?;
+                    outlook_on_demand(&state, &entry, Arc::clone(model), target).await?
+                }
             }
             .map_err(AppError::Pipeline)?;
             &*on_demand
@@ -217,15 +230,15 @@ async fn outlook_on_demand(
     state: &Arc<AppState>,
     entry: &GaugeEntry,
     model: Arc<ServedModel>,
-    label: &str,
+    target: Season,
 ) -> Result<OnDemand, AppError> {
-    let target = query::parse_season(label, &entry.meta.seasons).map_err(AppError::BadRequest)?;
+    let label = target.label();
     let _permit = state
         .pipeline_permits
         .acquire()
         .await
         .map_err(|_| AppError::Internal("pipeline permits closed".into()))?;
-    if let Some(cached) = model.cached(label) {
+    if let Some(cached) = model.cached(&label) {
         return Ok(cached);
     }
     let st = Arc::clone(state);
@@ -236,7 +249,7 @@ async fn outlook_on_demand(
             .call_blocking(|c| state::load_inputs(c, &id))?
             .ok_or_else(|| AppError::NotFound(format!("no gauge named {id:?}")))?;
         let outcome = pipeline::outlook_for_season(&inputs, &model.results, &target);
-        Ok(model.keep(&target.label(), outcome))
+        Ok(model.keep(&label, outcome))
     })
     .await?
 }

@@ -13,7 +13,7 @@ use axum::http::StatusCode;
 
 use crate::api;
 use crate::error::AppError;
-use crate::middleware::etag_of;
+use crate::etag::etag_of;
 use crate::pipeline::PipelineError;
 use crate::state::{AppState, ModelSource, build_entry};
 use crate::store::{self, GaugeRecord, SeriesKey, SeriesRecord};
@@ -238,7 +238,8 @@ pub async fn put_enso_forecast(
     let body = body_of(body)?;
     let receipt = blocking(&state, move |state| {
         let forecast = upload::parse_enso_forecast(&body)?;
-        let json = serde_json::to_string(&forecast).expect("wire types always serialize");
+        // Stored as uploaded (checked JSON, so UTF-8), free-text `note` included.
+        let json = String::from_utf8_lossy(&body).into_owned();
         let now = store::now_rfc3339();
         state.store.call_blocking(|c| {
             store::put_forecast(c, &forecast.season, &forecast.issued, &json, &now)

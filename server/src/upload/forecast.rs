@@ -14,8 +14,8 @@ const WHAT: &str = "ENSO forecast JSON";
 /// and either non-empty finite ensemble members per model or three category probabilities
 /// summing to 1.
 ///
-/// A top-level free-text `note` is allowed and not kept; other unknown fields are refused,
-/// as the model refuses them. A forecast is not tied to one gauge, so its season name is
+/// A top-level free-text `note` is allowed (the body is stored as uploaded, so the pipeline
+/// shows the note); other unknown fields are refused, as the model refuses them. A forecast is not tied to one gauge, so its season name is
 /// checked for shape only (any valid season name, e.g. a gauge's custom `NDJFM`); the
 /// pipeline checks it against a gauge's seasons when it uses the forecast.
 pub fn parse_enso_forecast(bytes: &[u8]) -> Result<EnsoForecast, UploadError> {

@@ -1,78 +1,20 @@
-//! A gauge's description: the per-gauge TOML (format in DEVELOPERS.md, "Gauge TOML"), read
-//! unchecked with serde and validated into a [`GaugeConfig`] with typed fields, and the
-//! pipeline entry point [`load_record`] that reads the level file the TOML names and builds
-//! the daily record and season table.
-//!
-//! This module and [`load_record`] are the only places the model opens files: the TOML's data
-//! paths are resolved relative to the TOML's own folder.
+//! Validation of a gauge TOML: the text read unchecked with serde (unknown keys refused), then
+//! each key checked into [`GaugeConfig`], every error naming the source, the key, what it
+//! allows and what it found.
 
-use std::fs::File;
-use std::io::BufReader;
 use std::path::{Path, PathBuf};
 
 use chrono::FixedOffset;
-use serde::{Deserialize, Serialize};
+use serde::Deserialize;
 
-use crate::daily::{DEFAULT_MIN_DAY_COMPLETENESS, DailyError, DailyRecord};
-use crate::ingest::{self, IngestError, IngestOptions, LevelSeries, LevelSummary, LevelUnits};
-use crate::season::{
-    DEFAULT_MIN_SEASON_COMPLETENESS, SeasonError, SeasonSpec, SeasonTable, SeasonTableError,
-    season_table,
+use super::{
+    DriverFiles, EnsoTiming, Family, GaugeConfig, GaugeError, LevelsConfig, ModelConfig, Predictor,
+    SeasonsConfig, WindStatistic,
 };
-
-/// Errors loading or validating a gauge.
-#[derive(Debug, thiserror::Error)]
-pub enum GaugeError {
-    /// A file could not be opened or read.
-    #[error("{}: {error}", path.display())]
-    Io {
-        /// The file.
-        path: PathBuf,
-        /// The I/O error.
-        error: std::io::Error,
-    },
-    /// The TOML does not parse or has unknown or mistyped keys.
-    #[error("{source_name}: {message}")]
-    Toml {
-        /// The TOML file or label.
-        source_name: String,
-        /// The parser's message (names the key and position).
-        message: String,
-    },
-    /// A key holds a value outside what it allows.
-    #[error("{source_name}: key `{key}`: expected {expected}, got {got}")]
-    Invalid {
-        /// The TOML file or label.
-        source_name: String,
-        /// The dotted key, e.g. `levels.units`.
-        key: String,
-        /// What the key allows.
-        expected: String,
-        /// The value found.
-        got: String,
-    },
-    /// The level file is unreadable or malformed.
-    #[error(transparent)]
-    Ingest(#[from] IngestError),
-    /// The level file has no usable days.
-    #[error("{path}: {error}")]
-    Daily {
-        /// The level file.
-        path: String,
-        /// What is missing.
-        error: DailyError,
-    },
-    /// The season table could not be built.
-    #[error("{source_name}: {error}")]
-    Seasons {
-        /// The TOML file or label.
-        source_name: String,
-        /// The failure.
-        error: SeasonTableError,
-    },
-}
-
-// ---- Unchecked: the TOML as written ----
+use crate::daily::DEFAULT_MIN_DAY_COMPLETENESS;
+use crate::drivers::SeaLevelSetting;
+use crate::ingest::LevelUnits;
+use crate::season::{DEFAULT_MIN_SEASON_COMPLETENESS, SeasonError, SeasonSpec};
 
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -92,6 +34,8 @@ struct RawGauge {
     drivers: Option<RawDrivers>,
     #[serde(default)]
     model: Option<RawModel>,
+    #[serde(default)]
+    sea_level: Option<SeaLevelSetting>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -138,140 +82,7 @@ struct RawModel {
     exceed_days: Option<Vec<i64>>,
 }
 
-// ---- Checked ----
-
-/// A validated gauge description.
-#[derive(Debug, Clone, PartialEq)]
-pub struct GaugeConfig {
-    /// Lowercase letters, digits and `-`.
-    pub id: String,
-    /// The display name.
-    pub name: String,
-    /// Degrees north, -90..=90.
-    pub latitude: f64,
-    /// Degrees east, -180..=180.
-    pub longitude: f64,
-    /// The datum levels and threshold are relative to.
-    pub datum: String,
-    /// The minor flood threshold, metres above `datum`.
-    pub flood_threshold_m: f64,
-    /// The gauge's local standard time (no daylight saving).
-    pub utc_offset: FixedOffset,
-    /// Bearing of the seaward shore normal, degrees clockwise from north, 0..360.
-    pub coast_orientation_deg: f64,
-    /// The water-level record.
-    pub levels: LevelsConfig,
-    /// The seasons counted.
-    pub seasons: SeasonsConfig,
-    /// Driver files, resolved.
-    pub drivers: DriverFiles,
-    /// Model choices.
-    pub model: ModelConfig,
-    /// Where the description came from (file name or label), for messages.
-    pub source_name: String,
-}
-
-/// The `[levels]` table, validated.
-#[derive(Debug, Clone, PartialEq)]
-pub struct LevelsConfig {
-    /// The level file, resolved against the TOML's folder.
-    pub file: PathBuf,
-    /// The declared units.
-    pub units: LevelUnits,
-    /// The value meaning "missing", in the file's units.
-    pub missing_sentinel: Option<f64>,
-    /// Share of a day's expected readings needed, (0, 1].
-    pub min_day_completeness: f64,
-}
-
-/// The `[seasons]` table, validated.
-#[derive(Debug, Clone, PartialEq)]
-pub struct SeasonsConfig {
-    /// The season definitions (the meteorological four unless `custom` is given).
-    pub specs: Vec<SeasonSpec>,
-    /// Seasons with a smaller share of observed days are left out of fitting, [0, 1].
-    pub min_completeness: f64,
-}
-
-/// The `[drivers]` table: optional files, resolved against the TOML's folder.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct DriverFiles {
-    /// Monthly ENSO index CSV.
-    pub enso: Option<PathBuf>,
-    /// Daily RMM CSV.
-    pub rmm: Option<PathBuf>,
-    /// Wind CSV.
-    pub wind: Option<PathBuf>,
-    /// ENSO forecast JSON for a target season.
-    pub enso_forecast: Option<PathBuf>,
-}
-
-/// The count-model family.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Family {
-    /// Poisson.
-    Poisson,
-    /// Negative binomial (NB2).
-    Negbin,
-    /// Chosen from the data.
-    Auto,
-}
-
-pub use crate::predictor::Predictor;
-
-/// Which season's ENSO value is used.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum EnsoTiming {
-    /// The preceding season's, known at issue time.
-    Preceding,
-    /// The target season's own (from a forecast when issuing).
-    Concurrent,
-}
-
-/// How daily along-shore wind becomes a seasonal value.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum WindStatistic {
-    /// The mean.
-    Mean,
-    /// The mean of the positive (onshore-pushing) part.
-    Positive,
-}
-
-/// The `[model]` table, validated.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ModelConfig {
-    /// The count family (default `auto`).
-    pub family: Family,
-    /// The predictors, without repeats (default: every predictor whose data is present).
-    pub predictors: Vec<Predictor>,
-    /// ENSO timing (default `preceding`).
-    pub enso_timing: EnsoTiming,
-    /// RMM phases 1..=8 whose active days count (default 2 and 3).
-    pub mjo_phases: Vec<u8>,
-    /// Wind statistic (default `mean`).
-    pub wind_statistic: WindStatistic,
-    /// Day counts k for P(N >= k), increasing (default 5, 10, 20).
-    pub exceed_days: Vec<u32>,
-}
-
 impl GaugeConfig {
-    /// Reads and validates a gauge TOML file; data paths resolve against its folder.
-    pub fn load(path: &Path) -> Result<Self, GaugeError> {
-        let text = std::fs::read_to_string(path).map_err(|error| GaugeError::Io {
-            path: path.to_owned(),
-            error,
-        })?;
-        let base_dir = path.parent().unwrap_or(Path::new(""));
-        let source_name = path.file_name().map_or_else(
-            || path.display().to_string(),
-            |n| n.to_string_lossy().into_owned(),
-        );
-        Self::from_toml_str(&text, &source_name, base_dir)
-    }
-
     /// Validates a gauge TOML given as text; `source_name` labels messages and data paths
     /// resolve against `base_dir`.
     pub fn from_toml_str(
@@ -283,20 +94,11 @@ impl GaugeConfig {
             source_name: source_name.to_owned(),
             message: e.message().to_owned() + &toml_position(text, e.span()),
         })?;
-        Checker {
+        TomlValidator {
             source_name,
             base_dir,
         }
         .gauge(raw)
-    }
-
-    /// How to read this gauge's level file.
-    pub fn ingest_options(&self) -> IngestOptions {
-        IngestOptions {
-            units: self.levels.units,
-            missing_sentinel: self.levels.missing_sentinel,
-            utc_offset: self.utc_offset,
-        }
     }
 }
 
@@ -313,12 +115,13 @@ fn toml_position(text: &str, span: Option<std::ops::Range<usize>>) -> String {
     format!(" (line {line}, column {column})")
 }
 
-struct Checker<'a> {
+/// Checks each key of the TOML as written and names the key in every error.
+struct TomlValidator<'a> {
     source_name: &'a str,
     base_dir: &'a Path,
 }
 
-impl Checker<'_> {
+impl TomlValidator<'_> {
     fn invalid(&self, key: &str, expected: &str, got: impl std::fmt::Display) -> GaugeError {
         GaugeError::Invalid {
             source_name: self.source_name.to_owned(),
@@ -401,6 +204,7 @@ impl Checker<'_> {
             levels: self.levels(raw.levels)?,
             seasons: self.seasons(raw.seasons)?,
             model: self.model(raw.model, &drivers)?,
+            sea_level: self.sea_level(raw.sea_level)?,
             drivers,
             source_name: self.source_name.to_owned(),
         })
@@ -516,6 +320,27 @@ impl Checker<'_> {
             specs,
             min_completeness,
         })
+    }
+
+    /// The `[sea_level]` table: a set rate or a projection table is checked here (it needs no
+    /// data); a trend is fitted when the gauge is prepared.
+    fn sea_level(&self, raw: Option<SeaLevelSetting>) -> Result<SeaLevelSetting, GaugeError> {
+        let setting = raw.unwrap_or_default();
+        match &setting {
+            SeaLevelSetting::Trend { .. } => {}
+            SeaLevelSetting::Rate { .. } | SeaLevelSetting::Projection { .. } => {
+                if let Err(e) = setting.resolve(&[]) {
+                    let expected = match setting {
+                        SeaLevelSetting::Rate { .. } => {
+                            "finite rate_m_per_yr, reference_year and reference_level_m"
+                        }
+                        _ => "points [year, level_m] with finite values and years increasing",
+                    };
+                    return Err(self.invalid("sea_level", expected, e));
+                }
+            }
+        }
+        Ok(setting)
     }
 
     fn drivers(&self, raw: Option<RawDrivers>) -> Result<DriverFiles, GaugeError> {
@@ -666,79 +491,6 @@ impl Checker<'_> {
             exceed_days,
         })
     }
-}
-
-/// A gauge's record, from level file to season table.
-#[derive(Debug, Clone, PartialEq)]
-pub struct GaugeRecord {
-    /// What the streaming pass kept (per-day totals, monthly means, interval).
-    pub summary: LevelSummary,
-    /// Daily maxima with observed flags.
-    pub daily: DailyRecord,
-    /// Flood days and exposure per season.
-    pub seasons: SeasonTable,
-}
-
-fn open_levels(config: &GaugeConfig) -> Result<(BufReader<File>, String), GaugeError> {
-    let path = &config.levels.file;
-    let file = File::open(path).map_err(|error| GaugeError::Io {
-        path: path.clone(),
-        error,
-    })?;
-    Ok((
-        BufReader::with_capacity(256 * 1024, file),
-        path.display().to_string(),
-    ))
-}
-
-/// Reads the gauge's level file and builds its daily record and season table.
-pub fn load_record(config: &GaugeConfig) -> Result<GaugeRecord, GaugeError> {
-    let (reader, name) = open_levels(config)?;
-    let summary = ingest::summarize(reader, &config.ingest_options(), &name)?;
-    record_from_summary(config, summary, &name)
-}
-
-/// Builds the daily record and season table from an already read summary (e.g. a level file
-/// uploaded over HTTP); `levels_name` labels messages.
-pub fn record_from_summary(
-    config: &GaugeConfig,
-    summary: LevelSummary,
-    levels_name: &str,
-) -> Result<GaugeRecord, GaugeError> {
-    let daily = DailyRecord::new(
-        &summary.days,
-        summary.sampling_interval_s,
-        config.levels.min_day_completeness,
-    )
-    .map_err(|error| GaugeError::Daily {
-        path: levels_name.to_owned(),
-        error,
-    })?;
-    let seasons = season_table(
-        &daily,
-        &config.seasons.specs,
-        config.flood_threshold_m,
-        config.seasons.min_completeness,
-    )
-    .map_err(|error| GaugeError::Seasons {
-        source_name: config.source_name.clone(),
-        error,
-    })?;
-    Ok(GaugeRecord {
-        summary,
-        daily,
-        seasons,
-    })
-}
-
-/// Reads every reading of the gauge's level file, sorted by time, in metres.
-pub fn load_levels(config: &GaugeConfig) -> Result<LevelSeries, GaugeError> {
-    let (reader, name) = open_levels(config)?;
-    Ok(ingest::read_levels(
-        reader,
-        &config.ingest_options(),
-        &name,
-    )?)
 }
 
 #[cfg(test)]
@@ -945,5 +697,81 @@ units = "m"
             .unwrap_err()
             .to_string();
         assert!(err.contains("extra"), "{err}");
+    }
+
+    /// Every documented form of `[sea_level]` (DEVELOPERS.md, "Sea-level source") through the
+    /// real loader.
+    #[test]
+    fn sea_level_tables_load_in_each_form() {
+        use crate::drivers::{SeasonalCycle, TrendShape};
+        let load = |table: &str| parse(&format!("{MINIMAL}\n[sea_level]\n{table}\n"));
+        assert_eq!(
+            parse(MINIMAL).unwrap().sea_level,
+            SeaLevelSetting::default()
+        );
+        assert_eq!(
+            load("source = \"trend\"\nshape = \"quadratic\"")
+                .unwrap()
+                .sea_level,
+            SeaLevelSetting::Trend {
+                shape: TrendShape::Quadratic,
+                cycle: SeasonalCycle::AnnualSemiannual
+            }
+        );
+        assert_eq!(
+            load("source = \"trend\"\nshape = \"linear\"\ncycle = \"omitted\"")
+                .unwrap()
+                .sea_level,
+            SeaLevelSetting::Trend {
+                shape: TrendShape::Linear,
+                cycle: SeasonalCycle::Omitted
+            }
+        );
+        assert_eq!(
+            load(
+                "source = \"rate\"\nrate_m_per_yr = 0.0034\nreference_year = 2000.0\n\
+                 reference_level_m = 0.12"
+            )
+            .unwrap()
+            .sea_level,
+            SeaLevelSetting::Rate {
+                rate_m_per_yr: 0.0034,
+                reference_year: 2000.0,
+                reference_level_m: 0.12
+            }
+        );
+        assert_eq!(
+            load("source = \"projection\"\npoints = [[2020.0, 0.15], [2050.0, 0.32]]")
+                .unwrap()
+                .sea_level,
+            SeaLevelSetting::Projection {
+                points: vec![[2020.0, 0.15], [2050.0, 0.32]]
+            }
+        );
+        // Missing or unknown keys, bad values and unordered tables are named.
+        let err = load("source = \"rate\"").unwrap_err().to_string();
+        assert!(
+            err.starts_with("port-alder.toml: ") && err.contains("rate_m_per_yr"),
+            "{err}"
+        );
+        let err = load("source = \"trend\"\nslope = 1")
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("slope"), "{err}");
+        let err = load("source = \"trend\"\nshape = \"cubic\"")
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("cubic"), "{err}");
+        let err = load(
+            "source = \"rate\"\nrate_m_per_yr = nan\nreference_year = 2000.0\n\
+             reference_level_m = 0.1",
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(err.contains("key `sea_level`"), "{err}");
+        let err = load("source = \"projection\"\npoints = [[2050.0, 0.3], [2020.0, 0.1]]")
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("key `sea_level`"), "{err}");
     }
 }

@@ -1,0 +1,120 @@
+//! A gauge's inputs as read, before anything is parsed: the TOML text and each data file's
+//! bytes, each with the name its errors use. [`GaugeSources::read`] fills them from a TOML
+//! file and the files it names (the only place the model opens data files); the service fills
+//! them from its store. [`super::prepare`] parses each exactly once.
+
+use std::path::{Path, PathBuf};
+
+use crate::gauge::{GaugeConfig, GaugeError};
+
+/// A text input (the gauge TOML) and the name its errors use.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct TextSource {
+    /// The file name or label, e.g. `port-tamsin.toml`.
+    pub name: String,
+    /// The text.
+    pub text: String,
+}
+
+/// A data input (a CSV or JSON body, plain or gzip) and the name its errors use.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ByteSource {
+    /// The file name or label, e.g. `demo-data/drivers/enso-monthly.csv`.
+    pub name: String,
+    /// The bytes as stored.
+    pub bytes: Vec<u8>,
+}
+
+/// Everything a gauge's preparation reads: its TOML and the bytes of the files it uses.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct GaugeSources {
+    /// The gauge TOML.
+    pub toml: TextSource,
+    /// The folder the TOML's data paths are relative to (empty for a stored TOML).
+    pub base_dir: PathBuf,
+    /// The water-level file.
+    pub levels: ByteSource,
+    /// Monthly ENSO index CSV.
+    pub enso: Option<ByteSource>,
+    /// Daily RMM index CSV.
+    pub rmm: Option<ByteSource>,
+    /// The gauge's wind CSV.
+    pub wind: Option<ByteSource>,
+    /// The ENSO forecast JSON for a target season.
+    pub enso_forecast: Option<ByteSource>,
+}
+
+/// Which of a gauge's files [`GaugeSources::read`] reads.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FilesNeeded {
+    /// The level file only (the season table and the tide need no drivers).
+    Levels,
+    /// The level file and every driver and forecast file the TOML names.
+    All,
+}
+
+/// A gauge's file that could not be read.
+#[derive(Debug, thiserror::Error)]
+pub enum SourceError {
+    /// A file could not be opened or read.
+    #[error("{}: {error}", path.display())]
+    Io {
+        /// The file.
+        path: PathBuf,
+        /// The I/O error.
+        #[source]
+        error: std::io::Error,
+    },
+    /// The TOML does not validate (it names the files to read).
+    #[error(transparent)]
+    Gauge(#[from] GaugeError),
+}
+
+fn read_bytes(path: &Path) -> Result<ByteSource, SourceError> {
+    let bytes = std::fs::read(path).map_err(|error| SourceError::Io {
+        path: path.to_owned(),
+        error,
+    })?;
+    Ok(ByteSource {
+        name: path.display().to_string(),
+        bytes,
+    })
+}
+
+impl GaugeSources {
+    /// Reads a gauge TOML file and the files it names (relative to the TOML's folder).
+    pub fn read(toml_path: &Path, needed: FilesNeeded) -> Result<Self, SourceError> {
+        let text = std::fs::read_to_string(toml_path).map_err(|error| SourceError::Io {
+            path: toml_path.to_owned(),
+            error,
+        })?;
+        let toml = TextSource {
+            name: toml_path.file_name().map_or_else(
+                || toml_path.display().to_string(),
+                |n| n.to_string_lossy().into_owned(),
+            ),
+            text,
+        };
+        let base_dir = toml_path.parent().unwrap_or(Path::new("")).to_owned();
+        // The TOML names the files; `prepare` validates it again with their contents.
+        let files = GaugeConfig::from_toml_str(&toml.text, &toml.name, &base_dir)?;
+        let read = |path: &Option<PathBuf>| match (needed, path) {
+            (FilesNeeded::All, Some(p)) => read_bytes(p).map(Some),
+            _ => Ok(None),
+        };
+        Ok(Self {
+            levels: read_bytes(&files.levels.file)?,
+            enso: read(&files.drivers.enso)?,
+            rmm: read(&files.drivers.rmm)?,
+            wind: read(&files.drivers.wind)?,
+            enso_forecast: read(&files.drivers.enso_forecast)?,
+            toml,
+            base_dir,
+        })
+    }
+
+    /// The validated gauge description of [`GaugeSources::toml`].
+    pub fn config(&self) -> Result<GaugeConfig, GaugeError> {
+        GaugeConfig::from_toml_str(&self.toml.text, &self.toml.name, &self.base_dir)
+    }
+}
