@@ -83,18 +83,11 @@ pub struct TidalDriver {
 }
 
 impl TidalDriver {
-    /// The tidal driver of `season`: days whose predicted higher high water plus the
-    /// season's mean sea level (the trend at its middle, or the tide model's mean without a
-    /// trend) reaches the threshold minus [`TIDE_MARGIN_M`].
-    pub fn value(&self, season: &Season, sea_level: Option<&SeaLevelSource>) -> f64 {
-        let msl = sea_level
-            .and_then(|s| s.level_at(season.mid_year()).ok())
-            .map_or(self.model.mean, |v| v.value);
-        f64::from(self.model_value(season, msl))
-    }
-
-    fn model_value(&self, season: &Season, msl: f64) -> u32 {
-        self.rule.tidal_driver(&self.model, season, msl)
+    /// The tidal driver of `season`: days whose predicted higher high water on the record's
+    /// mean level (the tide alone: the sea-level trend is the `sea_level` predictor's, so the
+    /// two do not overlap) reaches the threshold minus [`TIDE_MARGIN_M`].
+    pub fn value(&self, season: &Season) -> f64 {
+        f64::from(self.rule.tidal_driver(&self.model, season, self.model.mean))
     }
 }
 
@@ -180,7 +173,12 @@ pub fn sea_level_source(
     setting: &SeaLevelSetting,
     record: &LevelRecord,
 ) -> Result<SeaLevelSource, TrendError> {
-    let months: Vec<MonthlyMeanLevel> = record
+    setting.resolve(&monthly_levels(record))
+}
+
+/// The record's monthly means as the sea-level fits take them.
+pub fn monthly_levels(record: &LevelRecord) -> Vec<MonthlyMeanLevel> {
+    record
         .summary
         .monthly
         .iter()
@@ -190,8 +188,7 @@ pub fn sea_level_source(
             mean_m: m.mean_m,
             readings: u32::try_from(m.readings).unwrap_or(u32::MAX),
         })
-        .collect();
-    setting.resolve(&months)
+        .collect()
 }
 
 /// Parses the driver series of `sources` (the forecast is set by
@@ -231,8 +228,8 @@ fn parse_drivers(
             None
         }
     };
-    let uses_tide = config.model.predictors.contains(&Predictor::Tide);
-    let tide = if uses_tide && tide == TideAnalysis::AsConfigured {
+    // The tide model serves the tidal driver and the water-level engine alike.
+    let tide = if tide == TideAnalysis::AsConfigured {
         Some(tidal_driver(
             config,
             &recorded.levels.times,
@@ -253,15 +250,16 @@ fn parse_drivers(
 }
 
 /// The tidal driver from a gauge's readings (times in unix seconds, levels in metres): a
-/// harmonic analysis (constituents by the Rayleigh criterion, mean and linear trend) and the
-/// count rule at the gauge's threshold.
+/// harmonic analysis (constituents by the Rayleigh criterion and the mean only, so the
+/// sea-level trend is counted once, by the sea-level source) and the count rule at the
+/// gauge's threshold.
 pub fn tidal_driver(
     config: &GaugeConfig,
     times: &[i64],
     levels_m: &[f64],
 ) -> Result<TidalDriver, PrepareError> {
     let model = AnalysisParams {
-        trend: true,
+        trend: false,
         ..AnalysisParams::default()
     }
     .check()?
@@ -351,9 +349,7 @@ pub fn prepare_from(
                     ),
                 },
                 None => match &drivers.tide {
-                    Some(tide) => {
-                        DriverValue::Known(tide.value(&row.season, drivers.sea_level.as_ref()))
-                    }
+                    Some(tide) => DriverValue::Known(tide.value(&row.season)),
                     None => DriverValue::Missing("tide: the gauge does not use it".to_owned()),
                 },
             };
@@ -386,7 +382,7 @@ pub fn prepare_from(
         (Some(tide), Some(last)) => upcoming_seasons(&config, last, 2)
             .into_iter()
             .map(|s| {
-                let v = tide.value(&s, drivers.sea_level.as_ref());
+                let v = tide.value(&s);
                 (s, v)
             })
             .collect(),
@@ -451,6 +447,11 @@ impl PreparedGauge {
         Ok(())
     }
 
+    /// The record's monthly means as the sea-level fits take them.
+    pub fn monthly_means(&self) -> Vec<MonthlyMeanLevel> {
+        monthly_levels(&self.record)
+    }
+
     /// The model predictors the gauge's TOML asks for.
     pub fn requested_predictors(&self) -> Vec<Predictor> {
         self.config.model.predictors.clone()
@@ -472,7 +473,7 @@ impl PreparedGauge {
                     .find(|(s, _)| s == season)
                     .map(|(_, v)| *v)
             });
-        Some(known.unwrap_or_else(|| tide.value(season, self.drivers.sea_level.as_ref())))
+        Some(known.unwrap_or_else(|| tide.value(season)))
     }
 
     /// The default target season: the first season (of the gauge's definitions) starting

@@ -195,6 +195,7 @@ pub fn hindcast_gauge(
         .specs
         .par_iter()
         .map(|spec| {
+            let water = GaugeWater::for_gauge(prepared, spec.name()).ok();
             let setup = HindcastSetup {
                 gauge_name: &config.name,
                 seasons: &prepared.seasons,
@@ -204,7 +205,7 @@ pub fn hindcast_gauge(
                 enso_timing: prepared.settings.enso_timing,
                 exceed_days: &config.model.exceed_days,
                 enso: prepared.drivers.enso.as_ref(),
-                water: None,
+                water: water.as_ref(),
             };
             (spec.name().to_owned(), hindcast_season(&setup, options))
         })

@@ -19,6 +19,7 @@
 pub mod cautions;
 pub mod engine;
 pub mod explain;
+pub mod issue;
 
 pub mod mixture;
 pub mod predictive;
@@ -33,6 +34,7 @@ pub use cautions::{CautionContext, cautions};
 pub use engine::{
     DayChance, Engine, EngineChoice, EngineRequest, EngineSummary, WaterForecast, choose, lead,
 };
+pub use issue::{IssueOptions, Issued, issue};
 
 pub use explain::DriverEffect;
 pub use predictive::{DriverScenarios, predictive_pmf};

@@ -178,8 +178,8 @@ pub fn target_scenarios_from(
                 predictor: Predictor::Tide,
                 values: vec![value],
                 source: format!(
-                    "predicted astronomical tide: days whose predicted high water plus the \
-                     projected mean sea level comes within {TIDE_MARGIN_M} m of the threshold"
+                    "predicted astronomical tide: days whose predicted high water on the record's \
+                     mean level comes within {TIDE_MARGIN_M} m of the threshold"
                 ),
             }),
             None => notes.push(format!("no tidal driver value for {target}")),

@@ -13,6 +13,7 @@ use crate::drivers::{
     EnsoForecast, EnsoSeries, EnsoTiming, MonthlyMeanLevel, PastSeason, Resampling,
     ScenarioGenerator, SeaLevelSetting, SeaLevelSource,
 };
+use crate::fit::{Predictor, PreparedGauge};
 use crate::ingest::LevelSeries;
 use crate::season::{Season, SeasonSpec};
 use crate::tide::TideModel;
@@ -163,6 +164,70 @@ impl GaugeWater {
             simulations,
             rng,
         )
+    }
+}
+
+impl GaugeWater {
+    /// The water-level engine of `season_name` at a prepared gauge (its decoded readings,
+    /// daily record, tide model, drivers and `[sea_level]` setting).
+    pub fn for_gauge(
+        prepared: &PreparedGauge,
+        season_name: &str,
+    ) -> Result<GaugeWater, WaterError> {
+        let spec = prepared
+            .config
+            .seasons
+            .specs
+            .iter()
+            .find(|s| s.name().eq_ignore_ascii_case(season_name))
+            .ok_or_else(|| WaterError::SeasonMismatch {
+                season: season_name.to_owned(),
+                season_name: season_name.to_owned(),
+            })?;
+        let tide = &prepared
+            .drivers
+            .tide
+            .as_ref()
+            .ok_or(WaterError::NoTideModel)?
+            .model;
+        let wants = |p: Predictor| prepared.config.model.predictors.contains(&p);
+        let drivers = day_drivers(prepared);
+        let columns = Columns {
+            enso: wants(Predictor::Enso) && drivers.enso.is_some(),
+            mjo: wants(Predictor::Mjo) && drivers.rmm.is_some(),
+            wind: wants(Predictor::Wind) && drivers.wind.is_some(),
+        };
+        let monthly = prepared.monthly_means();
+        GaugeWater::new(&WaterInputs {
+            levels: &prepared.levels,
+            daily: &prepared.record.daily,
+            tide,
+            spec,
+            grid: DayGrid {
+                utc_offset_seconds: prepared.config.utc_offset.local_minus_utc(),
+                step_seconds: prepared.record.daily.sampling_interval_s,
+            },
+            drivers,
+            columns,
+            threshold_m: prepared.config.flood_threshold_m,
+            monthly: &monthly,
+            sea_level: &prepared.config.sea_level,
+        })
+    }
+}
+
+fn day_drivers(prepared: &PreparedGauge) -> DayDrivers<'_> {
+    DayDrivers {
+        enso: prepared.drivers.enso.as_ref(),
+        rmm: prepared
+            .drivers
+            .rmm
+            .as_ref()
+            .map(|r| (r, &prepared.settings.mjo_phases)),
+        wind: match (&prepared.drivers.wind, &prepared.settings.coast) {
+            (Some(w), Some(c)) => Some((w, c)),
+            _ => None,
+        },
     }
 }
 

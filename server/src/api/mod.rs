@@ -15,10 +15,10 @@ pub use gauge::{
     SeasonHistory, SeasonRow,
 };
 pub use outlook::{
-    BrierScore, DriverUse, Exceedance, FitPeriod, IssuedOutlook, IssuedOutlookList, LastSeason,
-    Outlook, OutlookSet, SeasonVerification, TercileReference, Terciles, Unavailable,
-    exceedance_from_pmf,
+    BrierScore, DayChance, DriverUse, EngineSummary, Exceedance, FitPeriod, IssuedOutlook,
+    IssuedOutlookList, LastSeason, Outlook, OutlookSet, SeasonVerification, TercileReference,
+    Terciles, Unavailable, WaterEffect, exceedance_from_pmf,
 };
 pub use problem::Problem;
-pub use skill::{Hindcast, HindcastCase, ScoreRow, Skill, Verdict};
+pub use skill::{EngineSkill, Hindcast, HindcastCase, ScoreRow, Skill, Verdict};
 pub use upload::{EnsoForecast, EnsoForecastModel, EnsoProbabilities, UploadReceipt};

@@ -55,6 +55,65 @@ pub struct Outlook {
     pub fit_period: FitPeriod,
     /// Notes on how the outlook was made (fallbacks, dropped predictors).
     pub notes: Vec<String>,
+    /// The engine the distribution comes from: `water` (daily high waters simulated on the
+    /// known tide) or `count` (the seasonal count model).
+    #[serde(default)]
+    pub engine: String,
+    /// Why that engine leads, in one plain sentence.
+    #[serde(default)]
+    pub engine_reason: String,
+    /// The other engine's answer, when it ran.
+    #[serde(default)]
+    pub other_engine: Option<EngineSummary>,
+    /// The season's calendar: each day's predicted high water and chance of a flood day
+    /// (empty when the water-level engine could not run).
+    #[serde(default)]
+    pub days: Vec<DayChance>,
+    /// The water-level engine's fitted driver effects on the daily high water.
+    #[serde(default)]
+    pub water_effects: Vec<WaterEffect>,
+}
+
+/// The other engine's answer.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EngineSummary {
+    /// `water` or `count`.
+    pub engine: String,
+    /// Expected flood days.
+    pub mean: f64,
+    /// Median flood days.
+    pub median: u32,
+    /// 10th percentile, days.
+    pub p10: u32,
+    /// 90th percentile, days.
+    pub p90: u32,
+}
+
+/// One day of the season's calendar.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct DayChance {
+    /// Local-standard-time date, `YYYY-MM-DD`.
+    pub date: String,
+    /// Predicted high water (tide plus projected mean sea level), metres on the datum.
+    pub predicted_high_m: f64,
+    /// Chance of a flood day (share of simulated seasons), 0 to 1. A seasonal estimate, not
+    /// a warning.
+    pub chance: f64,
+}
+
+/// One driver's fitted effect on the daily high water (water-level engine).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct WaterEffect {
+    /// `enso`, `mjo_in_phases`, `mjo_opposite_phases` or `wind`.
+    pub name: String,
+    /// What one unit is.
+    pub per: String,
+    /// Effect, metres per unit.
+    pub estimate_m: f64,
+    /// Season-clustered standard error, metres.
+    pub std_error_m: f64,
+    /// 95% interval, metres.
+    pub interval95_m: [f64; 2],
 }
 
 /// The seasons a model was fitted on.

@@ -31,6 +31,17 @@ pub struct Skill {
     pub scheme: String,
     /// Mean scores of the model and the references.
     pub scores: Vec<ScoreRow>,
+    /// The engine whose skill this is: `water` or `count`.
+    #[serde(default)]
+    pub engine: String,
+    /// How past seasons' ENSO was known: `at_issue` (as a real outlook would have known it)
+    /// or `observed` (perfect ENSO, an upper bound).
+    #[serde(default)]
+    pub enso: String,
+    /// The verdict with perfect ENSO (an upper bound), when the engines use the season's own
+    /// ENSO.
+    #[serde(default)]
+    pub perfect_enso_text: Option<String>,
 }
 
 /// One score of the model against the references (lower is better for every score here).
@@ -61,6 +72,22 @@ pub struct Hindcast {
     pub skill: Skill,
     /// The out-of-sample prediction of each scored season.
     pub cases: Vec<HindcastCase>,
+    /// Both engines side by side.
+    #[serde(default)]
+    pub engines: Vec<EngineSkill>,
+}
+
+/// One engine's out-of-sample record.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EngineSkill {
+    /// `water` or `count`.
+    pub engine: String,
+    /// Mean CRPS (days) averaged over the two schemes.
+    pub mean_crps: f64,
+    /// Mean CRPS per scheme: leave one year out, then rolling origin.
+    pub crps_by_scheme: Vec<f64>,
+    /// The verdict in plain words.
+    pub verdict_text: String,
 }
 
 /// One scored season of the hindcast.
@@ -78,4 +105,10 @@ pub struct HindcastCase {
     pub p90: u32,
     /// CRPS of this season's prediction.
     pub crps: f64,
+    /// The water-level engine's predicted mean, when it ran.
+    #[serde(default)]
+    pub water_mean: Option<f64>,
+    /// The water-level engine's CRPS, when it ran.
+    #[serde(default)]
+    pub water_crps: Option<f64>,
 }

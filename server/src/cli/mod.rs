@@ -202,6 +202,22 @@ pub struct OutlookArgs {
     /// Resample MJO and wind only from past seasons of each scenario's ENSO category.
     #[arg(long)]
     pub condition_on_enso: bool,
+    /// Which engine leads: `auto` (the one with the lower out-of-sample CRPS, ENSO as known at
+    /// issue time), `water` (daily high waters on the known tide) or `count` (the seasonal
+    /// count model).
+    #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
+    pub engine: EngineArg,
+}
+
+/// The `--engine` choice.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum EngineArg {
+    /// The engine that scored better out of sample.
+    Auto,
+    /// The water-level engine.
+    Water,
+    /// The seasonal count model.
+    Count,
 }
 
 /// Runs one parsed command.

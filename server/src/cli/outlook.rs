@@ -1,10 +1,14 @@
-//! `tidetally outlook --gauge FILE [--season LABEL] [--draws N] [--seed S]
-//! [--condition-on-enso]`: the seasonal outlook of flood days for one gauge, as JSON.
+//! `tidetally outlook --gauge FILE [--season LABEL] [--engine auto|water|count] [--draws N]
+//! [--seed S] [--condition-on-enso]`: the seasonal outlook of flood days for one gauge, as
+//! JSON, in the service's schema and through the service's own path
+//! ([`crate::pipeline::issue_outlook`]), so the command line and `GET .../outlook` agree.
 
 use anyhow::Context;
-use tidetally_model::fit::{self, FitOptions};
-use tidetally_model::outlook::{self, OutlookOptions};
+use tidetally_model::outlook::{EngineRequest, IssueOptions, OutlookOptions};
 use tidetally_model::season::Season;
+
+use super::EngineArg;
+use crate::pipeline::{self, IssueStamp};
 
 pub(super) fn run(args: super::OutlookArgs) -> anyhow::Result<()> {
     let prepared = super::prepare_gauge(&args.gauge)?;
@@ -14,13 +18,27 @@ pub(super) fn run(args: super::OutlookArgs) -> anyhow::Result<()> {
             "the level record has no observed day, so there is no default season; give --season",
         )?,
     };
-    let model = fit::fit_gauge(&prepared, target.spec().name(), &FitOptions::default())?;
-    let options = OutlookOptions {
-        draws: args.draws,
-        seed: args.seed,
-        condition_on_enso: args.condition_on_enso,
-        ..OutlookOptions::default()
+    let options = IssueOptions {
+        outlook: OutlookOptions {
+            draws: args.draws,
+            seed: args.seed,
+            condition_on_enso: args.condition_on_enso,
+            ..OutlookOptions::default()
+        },
+        engine: match args.engine {
+            EngineArg::Auto => EngineRequest::Auto,
+            EngineArg::Water => EngineRequest::Water,
+            EngineArg::Count => EngineRequest::Count,
+        },
+        ..IssueOptions::default()
     };
-    let outlook = outlook::build(&model, &prepared, &target, &options)?;
-    super::print_json(&outlook)
+    let issued_at = crate::store::now_rfc3339();
+    let version = format!("{}+local", env!("CARGO_PKG_VERSION"));
+    let stamp = IssueStamp {
+        issued_at: &issued_at,
+        model_version: &version,
+    };
+    let wire = pipeline::issue_outlook(&prepared, &target, &options, &stamp)
+        .map_err(|e| anyhow::anyhow!("{e}"))?;
+    super::print_json(&wire.outlook)
 }

@@ -1,7 +1,9 @@
 //! Model results -> wire types, field by field (no model type is serialised on the wire).
 
 use tidetally_model::glm::Family;
-use tidetally_model::hindcast::{ModelKind, SchemeHindcast, SeasonHindcast, VerdictKind};
+use tidetally_model::hindcast::{
+    ConcurrentEnso, ModelKind, SchemeHindcast, SeasonHindcast, VerdictKind,
+};
 use tidetally_model::outlook::{self as model_outlook, ReferenceKind};
 use tidetally_model::verify::{crps_count, quantile_count};
 
@@ -99,6 +101,52 @@ pub fn outlook(
             seasons: u32::try_from(o.fit_period.seasons).unwrap_or(u32::MAX),
         },
         notes: o.notes.clone(),
+        engine: engine_name(o.engine).to_owned(),
+        engine_reason: o.engine_reason.clone(),
+        other_engine: o.other_engine.as_ref().map(|e| api::EngineSummary {
+            engine: engine_name(e.engine).to_owned(),
+            mean: e.mean,
+            median: e.median,
+            p10: e.p10,
+            p90: e.p90,
+        }),
+        days: o
+            .days
+            .iter()
+            .map(|d| api::DayChance {
+                date: d.date.to_string(),
+                predicted_high_m: d.predicted_high_m,
+                chance: d.chance,
+            })
+            .collect(),
+        water_effects: o
+            .water
+            .iter()
+            .flat_map(|w| &w.effects)
+            .map(|e| api::WaterEffect {
+                name: e.name.clone(),
+                per: e.per.to_owned(),
+                estimate_m: e.estimate_m,
+                std_error_m: e.std_error_m,
+                interval95_m: e.interval95_m,
+            })
+            .collect(),
+    }
+}
+
+/// The wire name of an engine.
+pub fn engine_name(engine: model_outlook::Engine) -> &'static str {
+    match engine {
+        model_outlook::Engine::Water => "water",
+        model_outlook::Engine::Count => "count",
+    }
+}
+
+/// The hindcast system of an engine.
+pub fn engine_kind(engine: model_outlook::Engine) -> ModelKind {
+    match engine {
+        model_outlook::Engine::Water => ModelKind::Water,
+        model_outlook::Engine::Count => ModelKind::Drivers,
     }
 }
 
@@ -135,20 +183,23 @@ pub fn skill_not_measured(season_name: &str, why: &str) -> api::Skill {
         season_name: season_name.to_owned(),
         scheme: SHOWN_SCHEME.to_owned(),
         scores: Vec::new(),
+        engine: String::new(),
+        enso: String::new(),
+        perfect_enso_text: None,
     }
 }
 
-fn is_skilful(h: &SeasonHindcast, reference: ModelKind) -> Option<bool> {
-    h.verdict(reference)
+fn is_skilful(h: &SeasonHindcast, model: ModelKind, reference: ModelKind) -> Option<bool> {
+    h.verdict_of(model, reference)
         .map(|v| v.verdict == VerdictKind::Skilful)
 }
 
 /// The verdict of a hindcast: beats climatology (and the trend, when there is one), beats
 /// climatology only, or not better than climatology.
-fn verdict(h: &SeasonHindcast) -> api::Verdict {
+fn verdict(h: &SeasonHindcast, model: ModelKind) -> api::Verdict {
     match (
-        is_skilful(h, ModelKind::Climatology),
-        is_skilful(h, ModelKind::TrendOnly),
+        is_skilful(h, model, ModelKind::Climatology),
+        is_skilful(h, model, ModelKind::TrendOnly),
     ) {
         (None, _) => api::Verdict::NotMeasured,
         (Some(false), _) => api::Verdict::NoBetterThanClimatology,
@@ -157,9 +208,9 @@ fn verdict(h: &SeasonHindcast) -> api::Verdict {
     }
 }
 
-fn score_rows(scheme: &SchemeHindcast) -> Vec<api::ScoreRow> {
+fn score_rows(scheme: &SchemeHindcast, kind: ModelKind) -> Vec<api::ScoreRow> {
     let (Some(model), Some(clim)) = (
-        scheme.scores_of(ModelKind::Drivers),
+        scheme.scores_of(kind),
         scheme.scores_of(ModelKind::Climatology),
     ) else {
         return Vec::new();
@@ -198,13 +249,31 @@ fn score_rows(scheme: &SchemeHindcast) -> Vec<api::ScoreRow> {
     rows
 }
 
-/// The skill summary of a season name's hindcast.
-pub fn skill(h: &SeasonHindcast) -> api::Skill {
-    let shown = h.scheme(SHOWN_SCHEME);
-    let mut text: Vec<String> = [ModelKind::Climatology, ModelKind::TrendOnly]
+fn verdict_text(h: &SeasonHindcast, model: ModelKind) -> Vec<String> {
+    [ModelKind::Climatology, ModelKind::TrendOnly]
         .into_iter()
-        .filter_map(|r| h.verdict(r).map(|v| v.sentence.clone()))
-        .collect();
+        .filter_map(|r| h.verdict_of(model, r).map(|v| v.sentence.clone()))
+        .collect()
+}
+
+fn enso_name(h: &SeasonHindcast) -> &'static str {
+    match h.enso {
+        ConcurrentEnso::Observed => "observed",
+        ConcurrentEnso::Resampled => "resampled",
+        ConcurrentEnso::AtIssue => "at_issue",
+    }
+}
+
+/// The skill summary of `engine` in a season name's hindcast (ENSO as known at issue time),
+/// with the verdict under perfect ENSO beside it when there is one.
+pub fn engine_skill(
+    h: &SeasonHindcast,
+    engine: model_outlook::Engine,
+    perfect: Option<&SeasonHindcast>,
+) -> api::Skill {
+    let kind = engine_kind(engine);
+    let shown = h.scheme(SHOWN_SCHEME);
+    let mut text = verdict_text(h, kind);
     if text.is_empty() {
         text.push(format!(
             "No {} season could be forecast out of sample, so the outlook's skill is not \
@@ -213,17 +282,32 @@ pub fn skill(h: &SeasonHindcast) -> api::Skill {
         ));
     }
     api::Skill {
-        verdict: verdict(h),
+        verdict: verdict(h, kind),
         verdict_text: text.join(" "),
         seasons_scored: shown.map_or(0, |s| u32::try_from(s.cases.len()).unwrap_or(u32::MAX)),
         season_name: h.season_name.clone(),
         scheme: SHOWN_SCHEME.to_owned(),
-        scores: shown.map(score_rows).unwrap_or_default(),
+        scores: shown.map(|s| score_rows(s, kind)).unwrap_or_default(),
+        engine: engine_name(engine).to_owned(),
+        enso: enso_name(h).to_owned(),
+        perfect_enso_text: perfect.map(|p| {
+            format!(
+                "With each past season's ENSO as later observed (a perfect ENSO forecast, an \
+                 upper bound): {}",
+                verdict_text(p, kind).join(" ")
+            )
+        }),
     }
 }
 
 /// The full hindcast of a season name as served.
-pub fn hindcast(gauge: &str, h: &SeasonHindcast, model_version: &str) -> api::Hindcast {
+pub fn hindcast(
+    gauge: &str,
+    h: &SeasonHindcast,
+    perfect: Option<&SeasonHindcast>,
+    lead: model_outlook::Engine,
+    model_version: &str,
+) -> api::Hindcast {
     let cases = h
         .scheme(SHOWN_SCHEME)
         .map(|scheme| {
@@ -233,6 +317,7 @@ pub fn hindcast(gauge: &str, h: &SeasonHindcast, model_version: &str) -> api::Hi
                 .filter_map(|c| {
                     let at = c.means.iter().position(|m| m.model == ModelKind::Drivers)?;
                     let pmf = c.pmfs.get(at)?;
+                    let water = c.means.iter().position(|m| m.model == ModelKind::Water);
                     Some(api::HindcastCase {
                         season: c.season.clone(),
                         observed: c.observed,
@@ -240,6 +325,10 @@ pub fn hindcast(gauge: &str, h: &SeasonHindcast, model_version: &str) -> api::Hi
                         p10: quantile_count(pmf, 0.1),
                         p90: quantile_count(pmf, 0.9),
                         crps: crps_count(pmf, c.observed),
+                        water_mean: water.map(|w| c.means[w].mean),
+                        water_crps: water
+                            .and_then(|w| c.pmfs.get(w))
+                            .map(|p| crps_count(p, c.observed)),
                     })
                 })
                 .collect()
@@ -249,7 +338,24 @@ pub fn hindcast(gauge: &str, h: &SeasonHindcast, model_version: &str) -> api::Hi
         gauge: gauge.to_owned(),
         model_version: model_version.to_owned(),
         method: SHOWN_SCHEME.to_owned(),
-        skill: skill(h),
+        skill: engine_skill(h, lead, perfect),
         cases,
+        engines: h
+            .engines
+            .iter()
+            .map(|e| {
+                let engine = if e.model == ModelKind::Water {
+                    model_outlook::Engine::Water
+                } else {
+                    model_outlook::Engine::Count
+                };
+                api::EngineSkill {
+                    engine: engine_name(engine).to_owned(),
+                    mean_crps: e.mean_crps,
+                    crps_by_scheme: e.crps_by_scheme.clone(),
+                    verdict_text: verdict_text(h, e.model).join(" "),
+                }
+            })
+            .collect(),
     }
 }

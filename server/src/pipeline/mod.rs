@@ -16,9 +16,8 @@ use std::collections::BTreeMap;
 use serde::{Deserialize, Serialize};
 
 use tidetally_model::drivers::EnsoCategory;
-use tidetally_model::fit::{self, FitOptions, PreparedGauge, TideAnalysis};
-use tidetally_model::hindcast::{self, HindcastOptions, HindcastSetup, SeasonHindcast};
-use tidetally_model::outlook::{self as model_outlook, OutlookOptions};
+use tidetally_model::fit::{self, PreparedGauge, TideAnalysis};
+use tidetally_model::outlook::{self as model_outlook, IssueOptions};
 use tidetally_model::season::Season;
 
 use crate::api;
@@ -26,6 +25,7 @@ use crate::etag::etag_of;
 use crate::store::LevelsRecord;
 use crate::upload::GaugeMeta;
 
+pub use convert::IssueStamp;
 pub use verification::verify_issued;
 
 /// Why a pipeline step gave no result.
@@ -215,43 +215,49 @@ fn invalid(e: impl std::fmt::Display) -> PipelineError {
     PipelineError::Invalid(e.to_string())
 }
 
-/// The out-of-sample hindcast of one season name, with the gauge's own settings.
-fn hindcast_of(
-    prepared: &PreparedGauge,
-    season_name: &str,
-) -> Result<SeasonHindcast, PipelineError> {
-    let config = &prepared.config;
-    let predictors = prepared.requested_predictors();
-    let setup = HindcastSetup {
-        gauge_name: &config.name,
-        seasons: &prepared.seasons,
-        season_name,
-        predictors: &predictors,
-        family: fit::family_request(config.model.family),
-        enso_timing: prepared.settings.enso_timing,
-        exceed_days: &config.model.exceed_days,
-        enso: prepared.drivers.enso.as_ref(),
-        water: None,
-    };
-    hindcast::hindcast_season(&setup, &HindcastOptions::default()).map_err(invalid)
+/// An outlook as served, with its hindcast and the driver values behind it.
+#[derive(Debug, Clone)]
+pub struct WireOutlook {
+    /// The outlook.
+    pub outlook: api::Outlook,
+    /// The hindcast of its season name (both engines).
+    pub hindcast: Option<api::Hindcast>,
+    /// The driver values behind it, for the record of issued outlooks.
+    pub driver_inputs: serde_json::Value,
 }
 
-/// The outlook of `target` from a prepared gauge (holding the ENSO forecast for `target`),
-/// with `skill` attached; and the driver values behind it.
-fn issue_outlook(
+/// Issues the outlook of `target` from a prepared gauge (holding the ENSO forecast for
+/// `target`) through the model's one path ([`model_outlook::issue`]), converted to wire
+/// types. The command line and the service both come here.
+pub fn issue_outlook(
     prepared: &PreparedGauge,
     target: &Season,
-    skill: api::Skill,
-    issue: &convert::IssueStamp<'_>,
-) -> Result<(api::Outlook, serde_json::Value), PipelineError> {
-    let model =
-        fit::fit_gauge(prepared, target.spec().name(), &FitOptions::default()).map_err(invalid)?;
-    let outlook = model_outlook::build(&model, prepared, target, &OutlookOptions::default())
-        .map_err(invalid)?;
-    Ok((
-        convert::outlook(&outlook, skill, issue),
-        convert::driver_inputs(&outlook),
-    ))
+    options: &IssueOptions,
+    stamp: &convert::IssueStamp<'_>,
+) -> Result<WireOutlook, PipelineError> {
+    let issued = model_outlook::issue(prepared, target, options).map_err(invalid)?;
+    let lead = issued.outlook.engine;
+    let skill = match &issued.at_issue {
+        Some(h) => convert::engine_skill(h, lead, issued.perfect_enso.as_ref()),
+        None => convert::skill_not_measured(
+            target.spec().name(),
+            "no season of this name could be hindcast",
+        ),
+    };
+    let hindcast = issued.at_issue.as_ref().map(|h| {
+        convert::hindcast(
+            &prepared.config.id,
+            h,
+            issued.perfect_enso.as_ref(),
+            lead,
+            stamp.model_version,
+        )
+    });
+    Ok(WireOutlook {
+        driver_inputs: convert::driver_inputs(&issued.outlook),
+        outlook: convert::outlook(&issued.outlook, skill, stamp),
+        hindcast,
+    })
 }
 
 /// Fits the gauge's model, scores it out of sample and issues the outlook of its default
@@ -300,15 +306,20 @@ fn build_from(
         issued_at: &fitted_at,
         model_version: &model_version,
     };
-    let season_hindcast = hindcast_of(&prepared, &season_name)?;
-    let skill = convert::skill(&season_hindcast);
     prepared
         .set_enso_forecast(prepare::forecast_for(inputs, &target).as_ref())
         .map_err(invalid)?;
-    let (outlook, drivers) = issue_outlook(&prepared, &target, skill, &issue)?;
+    let issued = issue_outlook(&prepared, &target, &IssueOptions::default(), &issue)?;
+    let hindcast = issued.hindcast.ok_or_else(|| {
+        PipelineError::Invalid(format!(
+            "no {season_name} season of gauge {} could be hindcast out of sample",
+            inputs.meta.id
+        ))
+    })?;
+    let (outlook, drivers) = (issued.outlook, issued.driver_inputs);
     let label = target.label();
     Ok(GaugeResults {
-        hindcast: convert::hindcast(&inputs.meta.id, &season_hindcast, &model_version),
+        hindcast,
         outlooks: BTreeMap::from([(label.clone(), outlook)]),
         driver_inputs: BTreeMap::from([(label, drivers)]),
         model_version,
@@ -324,25 +335,12 @@ pub fn outlook_for_season(
     results: &GaugeResults,
     target: &Season,
 ) -> Result<api::Outlook, PipelineError> {
-    let season_name = target.spec().name();
     let prepared = prepare_stored(inputs, Some(target))?;
-    let known = results
-        .outlooks
-        .values()
-        .find(|o| o.skill.season_name == season_name)
-        .map(|o| o.skill.clone());
-    let skill = match known {
-        Some(skill) => skill,
-        None => match hindcast_of(&prepared, season_name) {
-            Ok(h) => convert::skill(&h),
-            Err(why) => convert::skill_not_measured(season_name, &why.to_string()),
-        },
-    };
     let issue = convert::IssueStamp {
         issued_at: &results.fitted_at,
         model_version: &results.model_version,
     };
-    issue_outlook(&prepared, target, skill, &issue).map(|(o, _)| o)
+    issue_outlook(&prepared, target, &IssueOptions::default(), &issue).map(|w| w.outlook)
 }
 
 #[cfg(test)]
