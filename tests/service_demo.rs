@@ -525,7 +525,7 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
         200,
     )
     .await;
-    let forecast = r#"{"season": "2025-DJF", "issued": "2025-11-15",
+    let forecast = r#"{"season": "2025-DJF", "issued": "2025-11-15", "note": "plumbing check",
         "probabilities": {"la_nina": 0.5, "neutral": 0.4, "el_nino": 0.1}}"#;
     call(addr, "PUT", "/api/v1/forecasts/enso", forecast.into(), 200).await;
     call(
@@ -546,6 +546,16 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
     .await;
     assert_eq!(o["season"], "2025-DJF");
     check_outlook(&o);
+    // The forecast's free-text note survives the upload, as it does from a file.
+    assert!(
+        o["notes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|n| n == "ENSO forecast note: plumbing check"),
+        "{}",
+        o["notes"]
+    );
     let issued_path = format!("/api/v1/outlooks/issued?gauge={id}");
     let issued = call(addr, "GET", &issued_path, vec![], 200).await;
     assert!(
