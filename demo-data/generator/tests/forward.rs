@@ -7,7 +7,7 @@ use std::fs;
 use std::path::{Path, PathBuf};
 
 use serde_json::Value;
-use tidetally_demo::calendar::{date_of, day_number, month_index_of, ymd};
+use tidetally_demo::calendar::{Season, date_of, day_number, month_index_of, ymd};
 use tidetally_demo::continuation::{self, SharedEnd};
 use tidetally_demo::drivers::{self, MjoState, RegionalWindState, written_wind};
 use tidetally_demo::forward::{self, EnsoScenario, GaugeEnd, SeasonGrid};
@@ -72,7 +72,7 @@ fn the_season_simulator_reproduces_past_expected_counts() {
         for year in [2019, 2021, 2023, 2025] {
             let (label, first) = (format!("{year}-DJF"), ymd(year, 12, 1));
             let first_day = day_number(first);
-            let days = if first.year_ce_leap() { 91 } else { 90 };
+            let days = Season::of(first).days() as usize;
             let offset = (first_day - start) as usize * per_day;
             let grid = SeasonGrid::new(gauge, first_day, days)
                 .with_presence(&mask[offset..offset + days * per_day]);
@@ -117,18 +117,6 @@ fn the_season_simulator_reproduces_past_expected_counts() {
             "{}: simulated {sim_total:.3} vs table {table_total:.3} (tolerance {tolerance:.3})",
             gauge.id
         );
-    }
-}
-
-/// Leap Februaries in the DJF seasons checked.
-trait Leap {
-    fn year_ce_leap(&self) -> bool;
-}
-
-impl Leap for chrono::NaiveDate {
-    fn year_ce_leap(&self) -> bool {
-        use chrono::Datelike;
-        chrono::NaiveDate::from_ymd_opt(self.year() + 1, 2, 29).is_some()
     }
 }
 
