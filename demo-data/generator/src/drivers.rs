@@ -129,31 +129,70 @@ impl Rmm {
     }
 }
 
+/// The MJO's full internal state on one day: log amplitude, the driver of the rotation
+/// period, and the phase angle (unrounded; the day's RMM pair follows from it).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MjoState {
+    /// ln(amplitude / median amplitude).
+    pub log_amp: f64,
+    /// The AR(1) process whose tanh sets the rotation period.
+    pub period_drive: f64,
+    /// Angle of (RMM1, RMM2), radians in [0, 2 pi).
+    pub theta: f64,
+}
+
+impl MjoState {
+    /// The day's RMM pair as written (rounded to 4 decimals).
+    pub fn rmm(&self) -> Rmm {
+        let amplitude = MJO.median_amplitude * self.log_amp.exp();
+        Rmm {
+            rmm1: round_to(amplitude * self.theta.cos(), 4),
+            rmm2: round_to(amplitude * self.theta.sin(), 4),
+        }
+    }
+
+    /// Advance one day, drawing the phase jitter, then the log-amplitude and period
+    /// innovations from `rng`.
+    pub fn step(&mut self, rng: &mut ChaCha8Rng) {
+        let p = &MJO;
+        let innov_amp = p.log_amplitude_sd * (1.0 - p.log_amplitude_ar1.powi(2)).sqrt();
+        let innov_period = (1.0 - p.period_ar1.powi(2)).sqrt();
+        let [short, long] = p.period_range_days;
+        let (mid, half) = (0.5 * (short + long), 0.5 * (long - short));
+        let period = mid + half * self.period_drive.tanh();
+        self.theta =
+            (self.theta + std::f64::consts::TAU / period + p.phase_jitter_rad * normal(rng))
+                .rem_euclid(std::f64::consts::TAU);
+        self.log_amp = p.log_amplitude_ar1 * self.log_amp + innov_amp * normal(rng);
+        self.period_drive = p.period_ar1 * self.period_drive + innov_period * normal(rng);
+    }
+}
+
 /// Daily RMM values for `days` days starting at day number `first_day`.
 pub fn rmm_series(master_seed: u64, days: usize) -> Vec<Rmm> {
+    rmm_series_with_end(master_seed, days).0
+}
+
+/// Daily RMM values for `days` days (at least one) and the MJO's state on the last day.
+pub fn rmm_series_with_end(master_seed: u64, days: usize) -> (Vec<Rmm>, MjoState) {
     let p = &MJO;
     let mut rng = component_rng(master_seed, "rmm");
-    let innov_amp = p.log_amplitude_sd * (1.0 - p.log_amplitude_ar1.powi(2)).sqrt();
-    let innov_period = (1.0 - p.period_ar1.powi(2)).sqrt();
-    let mut log_amp = p.log_amplitude_sd * normal(&mut rng);
-    let mut period_drive = normal(&mut rng);
-    let mut theta: f64 = rng.gen_range(0.0..std::f64::consts::TAU);
-    let [short, long] = p.period_range_days;
-    let (mid, half) = (0.5 * (short + long), 0.5 * (long - short));
+    let log_amp = p.log_amplitude_sd * normal(&mut rng);
+    let period_drive = normal(&mut rng);
+    let theta: f64 = rng.gen_range(0.0..std::f64::consts::TAU);
+    let mut state = MjoState {
+        log_amp,
+        period_drive,
+        theta,
+    };
+    let mut last = state;
     let mut out = Vec::with_capacity(days);
     for _ in 0..days {
-        let amplitude = p.median_amplitude * log_amp.exp();
-        out.push(Rmm {
-            rmm1: round_to(amplitude * theta.cos(), 4),
-            rmm2: round_to(amplitude * theta.sin(), 4),
-        });
-        let period = mid + half * period_drive.tanh();
-        theta = (theta + std::f64::consts::TAU / period + p.phase_jitter_rad * normal(&mut rng))
-            .rem_euclid(std::f64::consts::TAU);
-        log_amp = p.log_amplitude_ar1 * log_amp + innov_amp * normal(&mut rng);
-        period_drive = p.period_ar1 * period_drive + innov_period * normal(&mut rng);
+        out.push(state.rmm());
+        last = state;
+        state.step(&mut rng);
     }
-    out
+    (out, last)
 }
 
 /// Parameters of the regional daily wind shared by all gauges plus a local part per gauge.
@@ -196,30 +235,63 @@ pub fn winter_cycle(day: i64) -> f64 {
     (std::f64::consts::TAU * (doy - 15.0) / 365.25).cos()
 }
 
-/// Regional daily wind (u, v) in m/s, unrounded, for days from `first_day`.
-pub fn regional_wind(master_seed: u64, first_day: i64, days: usize) -> Vec<[f64; 2]> {
-    let p = &WIND;
-    let mut rng = component_rng(master_seed, "wind-regional");
-    let slow_innov = p.slow_sd * (1.0 - p.slow_ar1 * p.slow_ar1).sqrt();
-    let syn_innov = (1.0 - p.synoptic_ar1 * p.synoptic_ar1).sqrt();
-    let mut slow = [p.slow_sd * normal(&mut rng), p.slow_sd * normal(&mut rng)];
-    let mut syn = [normal(&mut rng), normal(&mut rng)];
-    let mut out = Vec::with_capacity(days);
-    for k in 0..days {
-        let day = first_day + k as i64;
+/// The regional wind's internal state on one day: slow and synoptic anomalies of (u, v).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RegionalWindState {
+    /// Slow anomaly of (u, v), m/s.
+    pub slow: [f64; 2],
+    /// Synoptic anomaly of (u, v) in units of its (seasonally varying) standard deviation.
+    pub syn: [f64; 2],
+}
+
+impl RegionalWindState {
+    /// The regional (u, v) in m/s on day number `day` (unrounded).
+    pub fn uv(&self, day: i64) -> [f64; 2] {
+        let p = &WIND;
         let cycle = winter_cycle(day);
         let syn_sd = p.synoptic_sd * (1.0 + p.synoptic_winter_boost * cycle);
-        let mut uv = [0.0; 2];
+        std::array::from_fn(|c| {
+            p.mean_uv[c] + p.seasonal_uv[c] * cycle + self.slow[c] + syn_sd * self.syn[c]
+        })
+    }
+
+    /// Advance one day, drawing the slow then the synoptic innovation of u, then of v.
+    pub fn step(&mut self, rng: &mut ChaCha8Rng) {
+        let p = &WIND;
+        let slow_innov = p.slow_sd * (1.0 - p.slow_ar1 * p.slow_ar1).sqrt();
+        let syn_innov = (1.0 - p.synoptic_ar1 * p.synoptic_ar1).sqrt();
         for c in 0..2 {
-            uv[c] = p.mean_uv[c] + p.seasonal_uv[c] * cycle + slow[c] + syn_sd * syn[c];
-        }
-        out.push(uv);
-        for c in 0..2 {
-            slow[c] = p.slow_ar1 * slow[c] + slow_innov * normal(&mut rng);
-            syn[c] = p.synoptic_ar1 * syn[c] + syn_innov * normal(&mut rng);
+            self.slow[c] = p.slow_ar1 * self.slow[c] + slow_innov * normal(rng);
+            self.syn[c] = p.synoptic_ar1 * self.syn[c] + syn_innov * normal(rng);
         }
     }
-    out
+}
+
+/// Regional daily wind (u, v) in m/s, unrounded, for days from `first_day`.
+pub fn regional_wind(master_seed: u64, first_day: i64, days: usize) -> Vec<[f64; 2]> {
+    regional_wind_with_end(master_seed, first_day, days).0
+}
+
+/// Regional daily wind for `days` days (at least one) from `first_day`, and the state on the
+/// last day.
+pub fn regional_wind_with_end(
+    master_seed: u64,
+    first_day: i64,
+    days: usize,
+) -> (Vec<[f64; 2]>, RegionalWindState) {
+    let p = &WIND;
+    let mut rng = component_rng(master_seed, "wind-regional");
+    let slow = [p.slow_sd * normal(&mut rng), p.slow_sd * normal(&mut rng)];
+    let syn = [normal(&mut rng), normal(&mut rng)];
+    let mut state = RegionalWindState { slow, syn };
+    let mut last = state;
+    let mut out = Vec::with_capacity(days);
+    for k in 0..days {
+        out.push(state.uv(first_day + k as i64));
+        last = state;
+        state.step(&mut rng);
+    }
+    (out, last)
 }
 
 /// How a gauge's wind file is written.
@@ -238,6 +310,42 @@ pub struct GaugeWind {
     pub uv: Vec<[f64; 2]>,
     /// Written columns per day (u, v) or (speed, from_deg).
     pub written: Vec<[f64; 2]>,
+    /// The local anomaly (u, v) on the last day, in units of `WIND.local_sd`.
+    pub end_local: [f64; 2],
+}
+
+/// Advance a local wind anomaly (unit AR(1) per component) one day, u then v.
+pub fn step_local_wind(local: &mut [f64; 2], rng: &mut ChaCha8Rng) {
+    let p = &WIND;
+    let innov = (1.0 - p.synoptic_ar1 * p.synoptic_ar1).sqrt();
+    for l in local.iter_mut() {
+        *l = p.synoptic_ar1 * *l + innov * normal(rng);
+    }
+}
+
+/// A day's wind as written (`[u, v]` or `[speed, from_deg]`, rounded) and the (u, v) a reader
+/// rebuilds from it, for the regional wind plus the local anomaly.
+pub fn written_wind(
+    regional: [f64; 2],
+    local: [f64; 2],
+    format: WindFormat,
+) -> ([f64; 2], [f64; 2]) {
+    let p = &WIND;
+    let u = regional[0] + p.local_sd * local[0];
+    let v = regional[1] + p.local_sd * local[1];
+    match format {
+        WindFormat::Components => {
+            let (u, v) = (round_to(u, 2), round_to(v, 2));
+            ([u, v], [u, v])
+        }
+        WindFormat::SpeedFrom => {
+            let speed = round_to(u.hypot(v), 2);
+            // Direction the wind blows from, clockwise from north.
+            let from = round_to((-u).atan2(-v).to_degrees().rem_euclid(360.0), 1) % 360.0;
+            let rad = from.to_radians();
+            ([speed, from], [-speed * rad.sin(), -speed * rad.cos()])
+        }
+    }
 }
 
 /// A gauge's daily wind: the regional field plus a local AR(1) part, rounded as written.
@@ -247,35 +355,23 @@ pub fn gauge_wind(
     regional: &[[f64; 2]],
     format: WindFormat,
 ) -> GaugeWind {
-    let p = &WIND;
     let mut rng = component_rng(master_seed, &format!("wind-local-{gauge_id}"));
-    let innov = (1.0 - p.synoptic_ar1 * p.synoptic_ar1).sqrt();
     let mut local = [normal(&mut rng), normal(&mut rng)];
+    let mut end_local = local;
     let mut uv = Vec::with_capacity(regional.len());
     let mut written = Vec::with_capacity(regional.len());
     for r in regional {
-        let u = r[0] + p.local_sd * local[0];
-        let v = r[1] + p.local_sd * local[1];
-        match format {
-            WindFormat::Components => {
-                let (u, v) = (round_to(u, 2), round_to(v, 2));
-                written.push([u, v]);
-                uv.push([u, v]);
-            }
-            WindFormat::SpeedFrom => {
-                let speed = round_to(u.hypot(v), 2);
-                // Direction the wind blows from, clockwise from north.
-                let from = round_to((-u).atan2(-v).to_degrees().rem_euclid(360.0), 1) % 360.0;
-                written.push([speed, from]);
-                let rad = from.to_radians();
-                uv.push([-speed * rad.sin(), -speed * rad.cos()]);
-            }
-        }
-        for l in &mut local {
-            *l = p.synoptic_ar1 * *l + innov * normal(&mut rng);
-        }
+        let (w, rebuilt) = written_wind(*r, local, format);
+        written.push(w);
+        uv.push(rebuilt);
+        end_local = local;
+        step_local_wind(&mut local, &mut rng);
     }
-    GaugeWind { uv, written }
+    GaugeWind {
+        uv,
+        written,
+        end_local,
+    }
 }
 
 /// Along-shore wind component, m/s, signed positive when the Northern-Hemisphere Ekman

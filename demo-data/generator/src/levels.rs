@@ -67,6 +67,8 @@ pub struct Record {
     pub presence: Vec<Presence>,
     /// The written realisation, in thousandths of the gauge's units (present samples).
     pub written_milli: Vec<i64>,
+    /// The unit AR(1) noise at the last sample (the noise's state at the record's end).
+    pub end_noise_z: f64,
 }
 
 impl Record {
@@ -117,25 +119,9 @@ pub fn build_record(master_seed: u64, gauge: &GaugeSpec, drivers: &DailyDrivers<
         let date = date_of(local_day);
         let enso = drivers.enso[month_index_of(date)];
         let rmm = drivers.rmm[(local_day - drivers.rmm_first_day) as usize];
-        let mjo = if rmm.active_in(&gauge.mjo.phases) {
-            gauge.mjo.effect_m
-        } else {
-            0.0
-        };
-        let w = alongshore(
-            drivers.wind_uv[(local_day - drivers.first_day) as usize],
-            gauge.coast_orientation_deg,
-        );
-        let w = if gauge.wind.positive_part_only {
-            w.max(0.0)
-        } else {
-            w
-        };
-        let daily = gauge.msl_2000_above_datum_m
-            + gauge.enso_m_per_degc * enso
-            + mjo
-            + gauge.wind.setup_m_per_mps * w;
-        let sd = gauge.noise.sd_m * (1.0 + gauge.noise.winter_boost * winter_cycle(local_day));
+        let uv = drivers.wind_uv[(local_day - drivers.first_day) as usize];
+        let daily = daily_level(gauge, enso, rmm, uv);
+        let sd = noise_sd(gauge, local_day);
         for k in 0..per_day {
             let minute = first_minute + (d * per_day + k) as i64 * gauge.interval_minutes;
             let astro = tide_model.height(minute);
@@ -155,9 +141,35 @@ pub fn build_record(master_seed: u64, gauge: &GaugeSpec, drivers: &DailyDrivers<
         sigma,
         presence,
         written_milli: Vec::new(),
+        end_noise_z: 0.0,
     };
-    record.written_milli = realisation(master_seed, gauge, &record);
+    (record.written_milli, record.end_noise_z) = realisation(master_seed, gauge, &record);
     record
+}
+
+/// The part of a day's level that is the same at every reading: mean sea level at 2000.0
+/// plus the ENSO, MJO and along-shore wind setup terms, metres above datum.
+pub fn daily_level(gauge: &GaugeSpec, enso_degc: f64, rmm: Rmm, wind_uv: [f64; 2]) -> f64 {
+    let mjo = if rmm.active_in(&gauge.mjo.phases) {
+        gauge.mjo.effect_m
+    } else {
+        0.0
+    };
+    let w = alongshore(wind_uv, gauge.coast_orientation_deg);
+    let w = if gauge.wind.positive_part_only {
+        w.max(0.0)
+    } else {
+        w
+    };
+    gauge.msl_2000_above_datum_m
+        + gauge.enso_m_per_degc * enso_degc
+        + mjo
+        + gauge.wind.setup_m_per_mps * w
+}
+
+/// The noise standard deviation on a local day, metres: larger in mid-winter.
+pub fn noise_sd(gauge: &GaugeSpec, local_day: i64) -> f64 {
+    gauge.noise.sd_m * (1.0 + gauge.noise.winter_boost * winter_cycle(local_day))
 }
 
 /// The AR(1) coefficient of the unit noise per sampling step.
@@ -165,24 +177,32 @@ pub fn noise_ar1(gauge: &GaugeSpec) -> f64 {
     (-(gauge.interval_minutes as f64 / 60.0) / gauge.noise.efold_hours).exp()
 }
 
-/// The written realisation: deterministic part plus one continuous AR(1) noise path.
-fn realisation(master_seed: u64, gauge: &GaugeSpec, record: &Record) -> Vec<i64> {
+/// The written realisation (deterministic part plus one continuous AR(1) noise path) and the
+/// noise at the last sample.
+fn realisation(master_seed: u64, gauge: &GaugeSpec, record: &Record) -> (Vec<i64>, f64) {
     let mut rng = component_rng(master_seed, &format!("noise-{}", gauge.id));
     let phi = noise_ar1(gauge);
     let innov = (1.0 - phi * phi).sqrt();
     let mut z: f64 = StandardNormal.sample(&mut rng);
+    let mut last = z;
     let mut out = Vec::with_capacity(record.deterministic.len());
     for (det, sd) in record.deterministic.iter().zip(&record.sigma) {
         out.push(to_milli(det + sd * z, gauge.units));
+        last = z;
         let e: f64 = StandardNormal.sample(&mut rng);
         z = phi * z + innov * e;
     }
-    out
+    (out, last)
 }
 
 /// The missing-data mask: scattered readings, short runs (written blank) and outages (rows
 /// left out), from the gauge's own random stream.
-fn missing_mask(master_seed: u64, gauge: &GaugeSpec, days: usize, per_day: usize) -> Vec<Presence> {
+pub fn missing_mask(
+    master_seed: u64,
+    gauge: &GaugeSpec,
+    days: usize,
+    per_day: usize,
+) -> Vec<Presence> {
     let mut rng = component_rng(master_seed, &format!("gaps-{}", gauge.id));
     let n = days * per_day;
     let per_hour = (60 / gauge.interval_minutes) as usize;

@@ -6,10 +6,13 @@
 //! Modules in data-flow order: [`seed`] (random streams), [`calendar`] (days, months,
 //! seasons), [`tide`] (astronomical tide), [`drivers`] (ENSO, MJO, wind), [`mod@gauges`] (the
 //! four gauges), [`levels`] (water levels, flood days and their expectation), [`seasons`]
-//! (per-season truth), [`output`] (file formats), and [`generate`] tying them together.
+//! (per-season truth), [`continuation`] and [`forward`] (the true distribution of the season
+//! after the record), [`output`] (file formats), and [`generate`] tying them together.
 
 pub mod calendar;
+pub mod continuation;
 pub mod drivers;
+pub mod forward;
 pub mod gauges;
 pub mod levels;
 pub mod output;
@@ -165,6 +168,8 @@ pub struct Summary {
     pub mean_counts: Vec<CountSummary>,
     /// Every gauge-season truth row.
     pub seasons: Vec<SeasonTruth>,
+    /// The true distribution of the season after the record (`truth-<season>.json`).
+    pub forward: forward::ForwardTruth,
 }
 
 /// Generate the whole demo coastline into `out` (e.g. `demo-data`).
@@ -181,9 +186,10 @@ pub fn generate(out: &Path) -> io::Result<Summary> {
     let enso = drivers::enso_series(seed, 48 * 12 + 2);
     let rmm_first = day_number(ymd(1979, 1, 1));
     let last_day = day_number(record_end());
-    let rmm = drivers::rmm_series(seed, (last_day - rmm_first + 1) as usize);
+    let (rmm, mjo_end) = drivers::rmm_series_with_end(seed, (last_day - rmm_first + 1) as usize);
     let wind_first = day_number(ymd(1980, 1, 1));
-    let regional = drivers::regional_wind(seed, wind_first, (last_day - wind_first + 1) as usize);
+    let (regional, regional_end) =
+        drivers::regional_wind_with_end(seed, wind_first, (last_day - wind_first + 1) as usize);
     put(
         "drivers/enso-monthly.csv",
         output::enso_csv(&enso, ENSO_MONTHS_WRITTEN).as_bytes(),
@@ -200,7 +206,7 @@ pub fn generate(out: &Path) -> io::Result<Summary> {
         .collect();
 
     // Levels and counts, one thread per gauge (CPU-bound, independent).
-    let results: Vec<(Vec<u8>, Vec<SeasonTruth>)> = std::thread::scope(|scope| {
+    let results: Vec<(Vec<u8>, Vec<SeasonTruth>, f64)> = std::thread::scope(|scope| {
         let handles: Vec<_> = specs
             .iter()
             .zip(&winds)
@@ -217,7 +223,7 @@ pub fn generate(out: &Path) -> io::Result<Summary> {
                     let record = levels::build_record(seed, gauge, &daily);
                     let counts = levels::day_counts(seed, gauge, &record);
                     let rows = season_truth(gauge, &record, &counts, &daily);
-                    output::levels_csv_gz(gauge, &record).map(|gz| (gz, rows))
+                    output::levels_csv_gz(gauge, &record).map(|gz| (gz, rows, record.end_noise_z))
                 })
             })
             .collect();
@@ -229,7 +235,12 @@ pub fn generate(out: &Path) -> io::Result<Summary> {
 
     let mut all_rows: Vec<SeasonTruth> = Vec::new();
     let mut summaries = Vec::new();
-    for ((gauge, wind), (gz, rows)) in specs.iter().zip(&winds).zip(results) {
+    let mut gauge_ends = Vec::new();
+    for ((gauge, wind), (gz, rows, end_noise_z)) in specs.iter().zip(&winds).zip(results) {
+        gauge_ends.push(forward::GaugeEnd {
+            local_wind: wind.end_local,
+            noise_z: end_noise_z,
+        });
         put(
             &format!("gauges/{}.toml", gauge.id),
             output::gauge_toml(gauge).as_bytes(),
@@ -255,7 +266,7 @@ pub fn generate(out: &Path) -> io::Result<Summary> {
         all_rows.extend(rows);
     }
 
-    let (forecast_json, enso_truth) = enso_forecast(seed, &enso);
+    let (forecast_json, enso_truth, forecast) = enso_forecast(seed, &enso);
     put(
         "drivers/enso-forecast-2026-DJF.json",
         forecast_json.as_bytes(),
@@ -263,6 +274,26 @@ pub fn generate(out: &Path) -> io::Result<Summary> {
     put(
         "truth-expected-counts.csv",
         seasons_csv(&all_rows).as_bytes(),
+    )?;
+    let forward_inputs = forward::ForwardInputs {
+        master_seed: seed,
+        gauges: &specs,
+        record_end_day: last_day,
+        shared_end: continuation::SharedEnd {
+            mjo: mjo_end,
+            regional: regional_end,
+        },
+        gauge_ends,
+        forecast,
+        pooled_mean_degc: enso_truth.pooled_forecast_mean_degc,
+        replicates: forward::FORWARD_REPLICATES,
+    };
+    let forward_truth = forward::forward_truth(&forward_inputs);
+    let forward_text =
+        serde_json::to_string_pretty(&forward_truth).map_err(io::Error::other)? + "\n";
+    put(
+        &format!("truth-{}.json", forward_truth.season),
+        forward_text.as_bytes(),
     )?;
     let truth = truth_document(&specs, enso_truth, summaries.clone());
     let truth_text = serde_json::to_string_pretty(&truth).map_err(io::Error::other)? + "\n";
@@ -274,11 +305,15 @@ pub fn generate(out: &Path) -> io::Result<Summary> {
         files,
         mean_counts: summaries,
         seasons: all_rows,
+        forward: forward_truth,
     })
 }
 
-/// The ENSO forecast file for 2026-DJF and the ENSO part of the truth.
-fn enso_forecast(seed: u64, enso: &[f64]) -> (String, EnsoTruth) {
+/// Each forecast model's name and members.
+type ModelMembers = Vec<(&'static str, Vec<f64>)>;
+
+/// The ENSO forecast file for 2026-DJF, the ENSO part of the truth, and each model's members.
+fn enso_forecast(seed: u64, enso: &[f64]) -> (String, EnsoTruth, ModelMembers) {
     let months = [(2026, 11), (2026, 12), (2027, 1), (2027, 2)];
     let continuation: Vec<(String, f64)> = months
         .iter()
@@ -289,6 +324,7 @@ fn enso_forecast(seed: u64, enso: &[f64]) -> (String, EnsoTruth) {
     let mut normal = || -> f64 { StandardNormal.sample(&mut rng) };
     let shared = SHARED_FORECAST_ERROR_SD * normal();
     let mut models_json = Vec::new();
+    let mut all_members = Vec::new();
     let mut pooled = 0.0;
     for model in &FORECAST_MODELS {
         let centre = target + shared + model.bias_degc + MODEL_FORECAST_ERROR_SD * normal();
@@ -297,6 +333,7 @@ fn enso_forecast(seed: u64, enso: &[f64]) -> (String, EnsoTruth) {
             .collect();
         pooled += members.iter().sum::<f64>() / members.len() as f64 / FORECAST_MODELS.len() as f64;
         models_json.push(serde_json::json!({"name": model.name, "members": members}));
+        all_members.push((model.name, members));
     }
     let doc = serde_json::json!({
         "season": "2026-DJF",
@@ -322,7 +359,7 @@ fn enso_forecast(seed: u64, enso: &[f64]) -> (String, EnsoTruth) {
         shared_forecast_error_degc: shared,
         pooled_forecast_mean_degc: pooled,
     };
-    (text, truth)
+    (text, truth, all_members)
 }
 
 fn truth_document(

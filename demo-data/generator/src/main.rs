@@ -25,6 +25,7 @@ fn main() -> ExitCode {
         eprintln!("tidetally-demo: --out DIR is required");
         return ExitCode::from(2);
     };
+    let started = std::time::Instant::now();
     match tidetally_demo::generate(&out) {
         Ok(summary) => {
             println!(
@@ -45,6 +46,27 @@ fn main() -> ExitCode {
                     s.mean_expected_flood_days
                 );
             }
+            let f = &summary.forward;
+            println!(
+                "{} true distribution ({} replicates): mean [p10, p90] share",
+                f.season, f.replicates
+            );
+            for g in &f.gauges {
+                let (m, x) = (&g.scenarios.members, &g.scenarios.enso_fixed);
+                println!(
+                    "{:<18} members {:>6.2} [{}, {}] {:.3}   enso_fixed {:>6.2} [{}, {}] {:.3}",
+                    g.id,
+                    m.mean,
+                    m.p10,
+                    m.p90,
+                    m.share_within_p10_p90,
+                    x.mean,
+                    x.p10,
+                    x.p90,
+                    x.share_within_p10_p90
+                );
+            }
+            println!("took {:.1} s", started.elapsed().as_secs_f64());
             ExitCode::SUCCESS
         }
         Err(err) => {

@@ -33,6 +33,15 @@ pub fn component_rng(master_seed: u64, component: &str) -> ChaCha8Rng {
     ChaCha8Rng::from_seed(key)
 }
 
+/// Replicate `replicate` of a named component: the component's ChaCha8 key with the
+/// replicate number as the ChaCha stream (nonce), so replicates are independent and each can
+/// be drawn on its own, in any order.
+pub fn replicate_rng(master_seed: u64, component: &str, replicate: u64) -> ChaCha8Rng {
+    let mut rng = component_rng(master_seed, component);
+    rng.set_stream(replicate);
+    rng
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -55,5 +64,10 @@ mod tests {
         assert_eq!(a1, a2);
         assert_ne!(a1, b);
         assert_ne!(a1, c);
+        let r0: u64 = replicate_rng(1, "enso", 0).r#gen();
+        let r1: u64 = replicate_rng(1, "enso", 1).r#gen();
+        assert_eq!(r0, a1, "replicate 0 is the component's own stream");
+        assert_ne!(r0, r1);
+        assert_eq!(r1, replicate_rng(1, "enso", 1).r#gen::<u64>());
     }
 }
