@@ -111,6 +111,8 @@ fn run_with(
         family,
         enso_timing,
         exceed_days: &[3, 6, 10],
+        enso: None,
+        water: None,
     };
     let options = HindcastOptions {
         draws,

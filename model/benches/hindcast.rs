@@ -55,6 +55,8 @@ fn bench(c: &mut Criterion) {
         family: family_request(port.config.model.family),
         enso_timing: port.settings.enso_timing,
         exceed_days: &port.config.model.exceed_days,
+        enso: port.drivers.enso.as_ref(),
+        water: None,
     };
     group.bench_function("one_season_name", |b| {
         b.iter(|| hindcast::hindcast_season(black_box(&setup), &options).expect("runs"))
@@ -78,6 +80,8 @@ fn bench(c: &mut Criterion) {
             family: family_request(g.config.model.family),
             enso_timing: g.settings.enso_timing,
             exceed_days: &g.config.model.exceed_days,
+            enso: g.drivers.enso.as_ref(),
+            water: None,
         })
         .collect();
     group.bench_function("demo_gauges_djf_parallel", |b| {

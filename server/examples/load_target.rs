@@ -79,6 +79,9 @@ fn filler(gauge: &str) -> GaugeResults {
         season_name: "DJF".into(),
         scheme: "none".into(),
         scores: vec![],
+        engine: "count".into(),
+        enso: "at_issue".into(),
+        perfect_enso_text: None,
     };
     let outlook = api::Outlook {
         gauge: gauge.into(),
@@ -107,6 +110,11 @@ fn filler(gauge: &str) -> GaugeResults {
             seasons: 26,
         },
         notes: vec![],
+        engine: "count".into(),
+        engine_reason: String::new(),
+        other_engine: None,
+        days: vec![],
+        water_effects: vec![],
     };
     GaugeResults {
         model_version: "load-filler".into(),
@@ -117,6 +125,7 @@ fn filler(gauge: &str) -> GaugeResults {
             method: "none".into(),
             skill,
             cases: vec![],
+            engines: vec![],
         },
         outlooks: BTreeMap::from([("2026-DJF".to_owned(), outlook)]),
         driver_inputs: BTreeMap::new(),

@@ -111,17 +111,25 @@ pub struct MonthlyMeanLevel {
 #[serde(rename_all = "snake_case")]
 pub enum TrendShape {
     /// level = a + b t.
-    #[default]
     Linear,
     /// level = a + b t + c t^2 (acceleration 2c).
     Quadratic,
+    /// Quadratic when the record spans at least [`AUTO_MIN_YEARS`] years and the fitted
+    /// acceleration's 95% interval (AR(1)-widened) excludes zero, else linear. Extrapolating a
+    /// linear fit of an accelerating record puts next season's level too low; a quadratic fit
+    /// of a short record extrapolates wildly, hence the two conditions. The default.
+    #[default]
+    Auto,
 }
+
+/// The shortest record, in years, on which [`TrendShape::Auto`] considers a quadratic.
+pub const AUTO_MIN_YEARS: f64 = 30.0;
 
 impl TrendShape {
     fn parameters(self) -> usize {
         match self {
             TrendShape::Linear => 2,
-            TrendShape::Quadratic => 3,
+            TrendShape::Quadratic | TrendShape::Auto => 3,
         }
     }
 }
@@ -292,6 +300,19 @@ pub fn fit_trend(
     shape: TrendShape,
     cycle: SeasonalCycle,
 ) -> Result<TrendFit, TrendError> {
+    if shape == TrendShape::Auto {
+        let linear = fit_trend(months, TrendShape::Linear, cycle)?;
+        if linear.last_year - linear.first_year < AUTO_MIN_YEARS {
+            return Ok(linear);
+        }
+        return Ok(match fit_trend(months, TrendShape::Quadratic, cycle) {
+            Ok(quadratic) => match quadratic.acceleration() {
+                Some(a) if a.value.abs() > 1.96 * a.std_error => quadratic,
+                _ => linear,
+            },
+            Err(_) => linear,
+        });
+    }
     let mut seen = BTreeSet::new();
     let mut points: Vec<(i32, f64, f64)> = Vec::new(); // (month index, time, level)
     for m in months {
@@ -601,6 +622,41 @@ mod tests {
                 }
             })
             .collect()
+    }
+
+    /// `years` of monthly means on `level(t) = 0.1 + rate t + accel t^2 / 2` (t from 2000),
+    /// with an alternating 1 mm wiggle.
+    fn curve(years: i32, rate: f64, accel: f64) -> Vec<MonthlyMeanLevel> {
+        (0..years * 12)
+            .map(|k| {
+                let (year, month) = (1980 + k / 12, (k % 12) as u32 + 1);
+                let t = month_mid_year(year, month).unwrap() - 2000.0;
+                let wiggle = if k % 2 == 0 { 0.001 } else { -0.001 };
+                MonthlyMeanLevel {
+                    year,
+                    month,
+                    mean_m: 0.1 + rate * t + 0.5 * accel * t * t + wiggle,
+                    readings: 700,
+                }
+            })
+            .collect()
+    }
+
+    #[test]
+    fn auto_takes_the_quadratic_only_for_a_long_accelerating_record() {
+        let auto = |m: &[MonthlyMeanLevel]| {
+            fit_trend(m, TrendShape::Auto, SeasonalCycle::Omitted)
+                .unwrap()
+                .shape
+        };
+        // 46 years accelerating at 0.1 mm/yr^2: quadratic (its acceleration is recovered).
+        let long = curve(46, 0.003, 0.0001);
+        assert_eq!(auto(&long), TrendShape::Quadratic);
+        let fit = fit_trend(&long, TrendShape::Auto, SeasonalCycle::Omitted).unwrap();
+        assert!((fit.acceleration().unwrap().value - 0.0001).abs() < 1e-5);
+        // 46 years of a straight line: linear. 20 years accelerating: too short, linear.
+        assert_eq!(auto(&curve(46, 0.003, 0.0)), TrendShape::Linear);
+        assert_eq!(auto(&curve(20, 0.003, 0.0001)), TrendShape::Linear);
     }
 
     #[test]

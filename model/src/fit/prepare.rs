@@ -228,13 +228,18 @@ fn parse_drivers(
             None
         }
     };
-    // The tide model serves the tidal driver and the water-level engine alike.
+    // The tide model serves the tidal driver and the water-level engine alike; a gauge whose
+    // count model does not use the tide still prepares when the analysis fails.
+    let uses_tide = config.model.predictors.contains(&Predictor::Tide);
     let tide = if tide == TideAnalysis::AsConfigured {
-        Some(tidal_driver(
-            config,
-            &recorded.levels.times,
-            &recorded.levels.levels_m,
-        )?)
+        match tidal_driver(config, &recorded.levels.times, &recorded.levels.levels_m) {
+            Ok(t) => Some(t),
+            Err(e) if !uses_tide => {
+                notes.push(format!("no tide model, so no water-level engine: {e}"));
+                None
+            }
+            Err(e) => return Err(e),
+        }
     } else {
         None
     };

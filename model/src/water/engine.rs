@@ -11,9 +11,9 @@ use super::days::SeasonWater;
 use super::regression::{self, Covariance, Regression};
 use crate::drivers::SeaLevelSource;
 
-/// Mean length of a resampled block of days, unless asked otherwise: about the life of a
-/// weather system and its after-effects (a stated choice).
-pub const DEFAULT_BLOCK_DAYS: f64 = 10.0;
+/// Mean length of a resampled block of days when the residuals are too few for the
+/// automatic rule ([`super::block`]): about the life of a weather system (a stated choice).
+pub const FALLBACK_BLOCK_DAYS: f64 = 10.0;
 
 /// Half-width of the window of calendar positions a block may be shifted within, days,
 /// unless asked otherwise (the +/- 7-day window of resampling weather generators, e.g.
@@ -58,8 +58,9 @@ pub struct WaterParams {
     pub columns: Columns,
     /// Flood threshold, m on the datum.
     pub threshold_m: f64,
-    /// Mean block length of the resampling, days (> 0).
-    pub block_days: f64,
+    /// Mean block length of the resampling, days (>= 1); `None`: chosen from the residuals'
+    /// persistence (Politis and White 2004).
+    pub block_days: Option<f64>,
     /// Half-width of the shift window, days.
     pub shift_days: usize,
 }
@@ -70,7 +71,7 @@ impl WaterParams {
         Self {
             columns,
             threshold_m,
-            block_days: DEFAULT_BLOCK_DAYS,
+            block_days: None,
             shift_days: DEFAULT_SHIFT_DAYS,
         }
     }
@@ -83,11 +84,13 @@ impl WaterParams {
                 value: self.threshold_m,
             });
         }
-        if !(self.block_days >= 1.0 && self.block_days.is_finite()) {
-            return Err(WaterError::BadSetting {
-                name: "block_days",
-                value: self.block_days,
-            });
+        if let Some(b) = self.block_days {
+            if !(b >= 1.0 && b.is_finite()) {
+                return Err(WaterError::BadSetting {
+                    name: "block_days",
+                    value: b,
+                });
+            }
         }
         Ok(WaterConfig(self.clone()))
     }
@@ -167,8 +170,13 @@ impl WaterConfig {
         for day in pool.iter_mut().flatten().flatten() {
             day.value -= enso_coefficient * day.enso;
         }
+        let season_days = pool.iter().map(Vec::len).max().unwrap_or(0);
+        let block_days = self.0.block_days.unwrap_or_else(|| {
+            super::block::politis_white(&pool, season_days).unwrap_or(FALLBACK_BLOCK_DAYS)
+        });
         let pool = Pool::new(pool, self.0.shift_days)?;
         Ok(WaterFit {
+            block_days,
             params: self.0.clone(),
             regression,
             pool,
@@ -259,6 +267,8 @@ impl Pool {
 #[derive(Debug, Clone, PartialEq)]
 pub struct WaterFit {
     pub(crate) params: WaterParams,
+    /// The mean block length the simulation resamples with, days.
+    pub block_days: f64,
     /// The residual regression on the drivers (block-robust errors).
     pub regression: Regression,
     pub(crate) pool: Pool,

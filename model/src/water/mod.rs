@@ -20,6 +20,7 @@
 //! each coming day is known. Outlook and hindcast reach the simulation through one function,
 //! [`simulate::simulate`], so the skill quoted is the skill of what is served.
 
+pub mod block;
 pub mod days;
 pub mod engine;
 pub mod gauge;

@@ -11,7 +11,8 @@
 //! - `past(d)`: a past season's residual with its own slow term and fitted ENSO effect removed
 //!   (`b` the estimate), keeping the day-to-day persistence and the joint behaviour of MJO,
 //!   wind and noise. Sequences are built by the stationary bootstrap (Politis and Romano 1994,
-//!   J. Am. Stat. Assoc. 89, 1303): blocks of geometric length (mean `block_days`), each from
+//!   J. Am. Stat. Assoc. 89, 1303): blocks of geometric length (mean `block_days`, chosen by
+//!   [`super::block`]), each from
 //!   a random past season and a random shift of up to `shift_days` along the season; a missing
 //!   past day is replaced by a random present day within the shift window.
 //!
@@ -117,7 +118,7 @@ pub fn simulate(
         };
         days.len()
     ];
-    let continue_block = 1.0 - 1.0 / fit.params.block_days;
+    let continue_block = 1.0 - 1.0 / fit.block_days;
     for s in 0..simulations {
         let z = slow_draw.sample(rng);
         let (shift_enso, b_s, b_hat) = match &enso_law {

@@ -122,6 +122,11 @@ mod tests {
                 seasons: 26,
             },
             notes: vec![],
+            engine: "count".into(),
+            engine_reason: String::new(),
+            other_engine: None,
+            days: vec![],
+            water_effects: vec![],
         }
     }
 

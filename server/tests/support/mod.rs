@@ -141,6 +141,9 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
         season_name: "DJF".into(),
         scheme: "leave_one_year_out".into(),
         scores: vec![],
+        engine: "count".into(),
+        enso: "at_issue".into(),
+        perfect_enso_text: None,
     };
     let outlook = api::Outlook {
         gauge: gauge.into(),
@@ -172,6 +175,11 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
             seasons: 26,
         },
         notes: vec![],
+        engine: "count".into(),
+        engine_reason: "Synthetic.".into(),
+        other_engine: None,
+        days: vec![],
+        water_effects: vec![],
     };
     GaugeResults {
         model_version: "synthetic-1".into(),
@@ -182,6 +190,7 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
             method: "leave-one-season-out".into(),
             skill,
             cases: vec![],
+            engines: vec![],
         },
         outlooks: BTreeMap::from([("2026-DJF".to_owned(), outlook)]),
         driver_inputs: BTreeMap::from([("2026-DJF".to_owned(), serde_json::json!({"enso": -0.9}))]),
