@@ -374,10 +374,8 @@ mod tests {
         let dir = std::env::temp_dir().join(format!("tidetally-seed-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&dir);
         std::fs::create_dir_all(&dir).unwrap();
-        let toml = crate::upload::tests_support::EXAMPLE
-            .replace("port-alder-levels.csv.gz", "levels.csv")
-            .replace("enso = \"../drivers/enso-monthly.csv\"\n", "")
-            .replace("wind = \"port-alder-wind.csv\"\n", "");
+        let toml = tidetally_test_support::fixtures::gauge_toml("port-alder")
+            .replace("port-alder-levels.csv", "levels.csv");
         std::fs::write(dir.join("port-alder.toml"), toml).unwrap();
         std::fs::write(
             dir.join("levels.csv"),

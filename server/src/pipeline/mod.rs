@@ -349,8 +349,8 @@ mod tests {
 
     #[test]
     fn a_gauge_without_levels_says_what_to_upload() {
-        let meta = crate::upload::parse_gauge_toml(crate::upload::tests_support::EXAMPLE)
-            .expect("example parses");
+        let toml = tidetally_test_support::fixtures::gauge_toml("port-alder");
+        let meta = crate::upload::parse_gauge_toml(&toml).expect("example parses");
         let inputs = GaugeInputs {
             meta,
             toml: String::new(),
