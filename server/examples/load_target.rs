@@ -8,7 +8,7 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use tidetally_server::pipeline::GaugeResults;
-use tidetally_server::store::{self, GaugeRecord, Store};
+use tidetally_server::store::{self, Store, StoredGaugeRow};
 use tidetally_server::{AppState, api, state};
 
 fn main() -> anyhow::Result<()> {
@@ -43,7 +43,7 @@ fn fill(state: &AppState, gauges: usize) -> anyhow::Result<()> {
         state.store.call_blocking(|c| {
             store::put_gauge(
                 c,
-                &GaugeRecord {
+                &StoredGaugeRow {
                     id: id.clone(),
                     toml,
                     name: format!("Test harbour {id}"),

@@ -10,10 +10,10 @@ use tokio::sync::Semaphore;
 
 use crate::api;
 use crate::auth::Token;
-use crate::catalog::{Catalog, GaugeEntry, Prepared, ServedModel};
+use crate::catalog::{Catalog, GaugeEntry, SerializedBody, ServedModel};
 use crate::etag::etag_of;
 use crate::pipeline::{self, GaugeInputs, GaugeResults, PipelineError, StoredForecast};
-use crate::store::{self, GaugeRecord, SeriesKey, SeriesRecord, Store, StoreError};
+use crate::store::{self, SeriesKey, SeriesRecord, Store, StoreError, StoredGaugeRow};
 use crate::upload::{self, CsvKind, UploadError};
 
 /// Shared by every request handler.
@@ -69,7 +69,7 @@ pub enum SeedError {
 
 /// One gauge of a data folder, read and checked, ready to store.
 struct SeedGauge {
-    record: GaugeRecord,
+    record: StoredGaugeRow,
     levels: store::LevelsRecord,
     series: Vec<SeriesRecord>,
     forecast: Option<(api::EnsoForecast, String)>,
@@ -146,7 +146,7 @@ fn read_seed_gauge(toml_path: &Path, now: &str) -> Result<SeedGauge, SeedError> 
         None => None,
     };
     Ok(SeedGauge {
-        record: GaugeRecord {
+        record: StoredGaugeRow {
             id: meta.id.clone(),
             toml: text,
             name: meta.name.clone(),
@@ -249,7 +249,8 @@ pub fn build_entry(
         readings: l.readings,
         uploaded_at: l.uploaded_at.clone(),
     });
-    let history_now = || pipeline::season_history(&inputs).map(|h| Arc::new(Prepared::new(h)));
+    let history_now =
+        || pipeline::season_history(&inputs).map(|h| Arc::new(SerializedBody::new(h)));
     let stored = match source {
         ModelSource::StoredOrBuild => store
             .call_blocking(|c| store::latest_model(c, id))?
@@ -270,7 +271,7 @@ pub fn build_entry(
         Some(results) => (history_now(), Ok(results)),
         None => {
             let (history, model) = pipeline::build_with_history(&inputs);
-            (history.map(|h| Arc::new(Prepared::new(h))), model)
+            (history.map(|h| Arc::new(SerializedBody::new(h))), model)
         }
     };
     if let (Ok(results), None) = (&model, &stored_version) {
