@@ -503,7 +503,7 @@ impl PreparedGauge {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
-    use crate::fit::TextSource;
+    use crate::fit::sources::TextSource;
 
     /// `days` days of six-hourly readings (invented: a flat 0.2 m with a daily bump).
     fn levels_csv(days: i64) -> Vec<u8> {
