@@ -169,7 +169,7 @@ pub fn record_gauge(sources: &GaugeSources) -> Result<RecordedGauge, PrepareErro
 pub fn prepare(sources: &GaugeSources, tide: TideAnalysis) -> Result<PreparedGauge, PrepareError> {
     let recorded = record_gauge(sources)?;
     let drivers = parse_drivers(sources, &recorded, tide)?;
-    let mut prepared = prepare_from(recorded, drivers)?;
+    let mut prepared = assemble(recorded, drivers)?;
     prepared.set_enso_forecast(sources.enso_forecast.as_ref())?;
     Ok(prepared)
 }
@@ -315,11 +315,9 @@ pub fn driver_of(p: Predictor) -> Option<Driver> {
     }
 }
 
-/// Prepares a recorded gauge with already parsed driver series.
-pub fn prepare_from(
-    recorded: RecordedGauge,
-    drivers: GaugeDrivers,
-) -> Result<PreparedGauge, PrepareError> {
+/// A recorded gauge with its parsed driver series -> the prepared gauge: each season's driver
+/// values (or why one is missing), the upcoming seasons' tidal driver.
+fn assemble(recorded: RecordedGauge, drivers: GaugeDrivers) -> Result<PreparedGauge, PrepareError> {
     let RecordedGauge {
         config,
         levels,
