@@ -175,7 +175,7 @@ pub fn prepare(sources: &GaugeSources, tide: TideAnalysis) -> Result<PreparedGau
 }
 
 /// The gauge's sea-level source from its `[sea_level]` setting; a trend is fitted to the
-/// record's monthly means. A trend that cannot be fitted gives `None` with the reason.
+/// record's monthly means (an error when the record is too short to fit one).
 pub fn sea_level_source(
     setting: &SeaLevelSetting,
     record: &LevelRecord,
