@@ -6,6 +6,7 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use rusqlite::Connection;
+use tidetally_model::fit::{GaugeToml, TextSource};
 use tokio::sync::Semaphore;
 
 use crate::api;
@@ -197,10 +198,16 @@ pub fn load_inputs(conn: &Connection, id: &str) -> Result<Option<GaugeInputs>, S
     let Some(gauge) = store::get_gauge(conn, id)? else {
         return Ok(None);
     };
-    let meta = upload::parse_gauge_toml(&gauge.toml).map_err(|e| StoreError::Corrupt {
+    // Validated once here; the pipeline uses the same checked description.
+    let source = TextSource {
+        name: format!("{id}.toml"),
+        text: gauge.toml,
+    };
+    let toml = GaugeToml::parse(source, Path::new("")).map_err(|e| StoreError::Corrupt {
         what: format!("gauge TOML of {id}"),
         message: e.to_string(),
     })?;
+    let meta = upload::GaugeMeta::of(toml.config());
     let series = |key: SeriesKey| -> Result<Option<Vec<u8>>, StoreError> {
         Ok(store::get_series(conn, &key)?.map(|s| s.csv))
     };
@@ -217,7 +224,7 @@ pub fn load_inputs(conn: &Connection, id: &str) -> Result<Option<GaugeInputs>, S
         rmm: series(SeriesKey::Rmm)?,
         wind: series(SeriesKey::Wind(id.to_owned()))?,
         enso_forecasts,
-        toml: gauge.toml,
+        toml,
         meta,
     }))
 }

@@ -27,7 +27,7 @@ pub use prepare::{
     TideAnalysis, driver_of, predictor_settings, prepare, record_gauge, sea_level_source,
     tidal_driver,
 };
-pub use sources::{ByteSource, FilesNeeded, GaugeSources, SourceError, TextSource};
+pub use sources::{ByteSource, FilesNeeded, GaugeSources, GaugeToml, SourceError, TextSource};
 
 use crate::glm::FamilyRequest;
 

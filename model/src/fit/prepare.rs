@@ -146,10 +146,9 @@ pub struct RecordedGauge {
     pub record: LevelRecord,
 }
 
-/// Validates the gauge TOML and decodes the level file (once), building the level record
-/// from the decoded readings.
+/// Decodes the level file (once) and builds the level record from the decoded readings.
 pub fn record_gauge(sources: &GaugeSources) -> Result<RecordedGauge, PrepareError> {
-    let config = sources.config()?;
+    let config = sources.config().clone();
     let name = &sources.levels.name;
     let (levels, summary) = ingest::decode_levels(
         sources.levels.bytes.as_slice(),
@@ -164,8 +163,8 @@ pub fn record_gauge(sources: &GaugeSources) -> Result<RecordedGauge, PrepareErro
     })
 }
 
-/// Prepares a gauge from its sources, parsing each exactly once: the TOML, the level file,
-/// each driver series and the ENSO forecast.
+/// Prepares a gauge from its sources (TOML already validated), parsing each file exactly
+/// once: the level file, each driver series and the ENSO forecast.
 pub fn prepare(sources: &GaugeSources, tide: TideAnalysis) -> Result<PreparedGauge, PrepareError> {
     let recorded = record_gauge(sources)?;
     let drivers = parse_drivers(sources, &recorded, tide)?;
@@ -501,7 +500,7 @@ impl PreparedGauge {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
-    use crate::fit::sources::TextSource;
+    use crate::fit::sources::{GaugeToml, TextSource};
 
     /// `days` days of six-hourly readings (invented: a flat 0.2 m with a daily bump).
     fn levels_csv(days: i64) -> Vec<u8> {
@@ -531,12 +530,12 @@ mod tests {
              [levels]\nfile = \"levels.csv\"\nunits = \"m\"\n\
              [model]\npredictors = [\"sea_level\"]\n{extra_toml}"
         );
+        let text = TextSource {
+            name: "g1.toml".into(),
+            text: toml,
+        };
         GaugeSources {
-            toml: TextSource {
-                name: "g1.toml".into(),
-                text: toml,
-            },
-            base_dir: std::path::PathBuf::new(),
+            toml: GaugeToml::parse(text, std::path::Path::new("")).unwrap(),
             levels: ByteSource {
                 name: "levels of g1".into(),
                 bytes: levels_csv(days),

@@ -58,25 +58,33 @@ pub struct GaugeMeta {
 /// they stay exactly as written (relative to wherever the TOML is later placed).
 pub fn parse_gauge_toml(text: &str) -> Result<GaugeMeta, UploadError> {
     let config = GaugeConfig::from_toml_str(text, WHAT, Path::new("")).map_err(gauge_error)?;
-    let path = |p: &Path| p.to_string_lossy().into_owned();
-    Ok(GaugeMeta {
-        utc_offset: config.utc_offset.to_string(),
-        levels_file: path(&config.levels.file),
-        drivers: DriverFiles {
-            enso: config.drivers.enso.as_deref().map(path),
-            rmm: config.drivers.rmm.as_deref().map(path),
-            wind: config.drivers.wind.as_deref().map(path),
-            enso_forecast: config.drivers.enso_forecast.as_deref().map(path),
-        },
-        exceed_days: config.model.exceed_days,
-        seasons: config.seasons.specs,
-        id: config.id,
-        name: config.name,
-        latitude: config.latitude,
-        longitude: config.longitude,
-        datum: config.datum,
-        flood_threshold_m: config.flood_threshold_m,
-    })
+    Ok(GaugeMeta::of(&config))
+}
+
+impl GaugeMeta {
+    /// What the service needs of a validated gauge description.
+    pub fn of(config: &GaugeConfig) -> Self {
+        let config = config.clone();
+        let path = |p: &Path| p.to_string_lossy().into_owned();
+        GaugeMeta {
+            utc_offset: config.utc_offset.to_string(),
+            levels_file: path(&config.levels.file),
+            drivers: DriverFiles {
+                enso: config.drivers.enso.as_deref().map(path),
+                rmm: config.drivers.rmm.as_deref().map(path),
+                wind: config.drivers.wind.as_deref().map(path),
+                enso_forecast: config.drivers.enso_forecast.as_deref().map(path),
+            },
+            exceed_days: config.model.exceed_days,
+            seasons: config.seasons.specs,
+            id: config.id,
+            name: config.name,
+            latitude: config.latitude,
+            longitude: config.longitude,
+            datum: config.datum,
+            flood_threshold_m: config.flood_threshold_m,
+        }
+    }
 }
 
 /// The model's error with the upload's label in place of a file name.
