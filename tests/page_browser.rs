@@ -9,9 +9,6 @@
 //! is set and otherwise prints a skip message. Screenshots go to `target/test-artifacts/`.
 #![allow(clippy::unwrap_used)]
 
-#[path = "support/webdriver.rs"]
-mod webdriver;
-
 use std::net::{SocketAddr, TcpListener};
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Stdio};
@@ -21,7 +18,7 @@ use std::time::{Duration, Instant};
 use serde_json::{Value, json};
 use tidetally_server::store::Store;
 use tidetally_server::{AppState, state};
-use webdriver::{Session, http};
+use tidetally_test_support::webdriver::{Session, http};
 
 const WAIT: Duration = Duration::from_secs(60);
 

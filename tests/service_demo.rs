@@ -8,8 +8,7 @@
 //! draws) and its result depends only on the stored inputs.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
-use std::io::{Read, Write};
-use std::net::{SocketAddr, TcpStream};
+use std::net::SocketAddr;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::Duration;
@@ -18,6 +17,7 @@ use serde_json::Value;
 use tidetally_server::auth::Token;
 use tidetally_server::store::Store;
 use tidetally_server::{AppState, state};
+use tidetally_test_support::http::request;
 
 const TOKEN: &str = "e2e-token-0123456789abcdef";
 const DEMO_GAUGE: &str = "port-tamsin";
@@ -37,54 +37,17 @@ fn temp_dir(name: &str) -> PathBuf {
     dir
 }
 
-/// One HTTP/1.1 request with `Connection: close`; returns status and body.
+/// One request through the shared test client (with the write token when asked); returns
+/// status and body text.
 fn http(addr: SocketAddr, method: &str, path: &str, token: bool, body: &[u8]) -> (u16, String) {
-    let mut stream = TcpStream::connect(addr).expect("connect");
-    stream
-        .set_read_timeout(Some(Duration::from_secs(120)))
-        .expect("timeout");
-    let auth = if token {
-        format!("Authorization: Bearer {TOKEN}\r\n")
+    let auth = format!("Bearer {TOKEN}");
+    let headers: &[(&str, &str)] = if token {
+        &[("Authorization", &auth)]
     } else {
-        String::new()
+        &[]
     };
-    let head = format!(
-        "{method} {path} HTTP/1.1\r\nHost: {addr}\r\n{auth}Content-Length: {}\r\nConnection: close\r\n\r\n",
-        body.len()
-    );
-    stream.write_all(head.as_bytes()).expect("write head");
-    stream.write_all(body).expect("write body");
-    let mut raw = Vec::new();
-    stream.read_to_end(&mut raw).expect("read");
-    let text = String::from_utf8_lossy(&raw).into_owned();
-    let (head, body) = text.split_once("\r\n\r\n").expect("a header block");
-    let status = head
-        .split(' ')
-        .nth(1)
-        .and_then(|s| s.parse().ok())
-        .expect("a status");
-    let body = if head
-        .to_ascii_lowercase()
-        .contains("transfer-encoding: chunked")
-    {
-        dechunk(body)
-    } else {
-        body.to_owned()
-    };
-    (status, body)
-}
-
-fn dechunk(mut body: &str) -> String {
-    let mut out = String::new();
-    while let Some((size, rest)) = body.split_once("\r\n") {
-        let n = usize::from_str_radix(size.trim(), 16).unwrap_or(0);
-        if n == 0 {
-            break;
-        }
-        out.push_str(&rest[..n]);
-        body = &rest[n + 2..];
-    }
-    out
+    let answer = request(addr, method, path, headers, body, Duration::from_secs(120));
+    (answer.status, answer.text())
 }
 
 /// A request from a blocking thread; the answer's JSON body, checked for `status`.

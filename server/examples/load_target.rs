@@ -4,12 +4,11 @@
 //!
 //! `cargo run --release -p tidetally-server --example load_target -- 127.0.0.1:8099 20`
 
-use std::collections::BTreeMap;
 use std::sync::Arc;
 use std::time::Duration;
 
 use tidetally_server::pipeline::GaugeResults;
-use tidetally_server::store::{self, GaugeRecord, Store};
+use tidetally_server::store::{self, Store, StoredGaugeRow};
 use tidetally_server::{AppState, api, state};
 
 fn main() -> anyhow::Result<()> {
@@ -40,31 +39,27 @@ fn main() -> anyhow::Result<()> {
 fn fill(state: &AppState, gauges: usize) -> anyhow::Result<()> {
     for i in 0..gauges {
         let id = format!("g{i:02}");
-        let toml = format!(
-            "id = \"{id}\"\nname = \"Load gauge {i}\"\nlatitude = 40.0\nlongitude = -70.0\n\
-             datum = \"STND\"\nflood_threshold_m = 0.8\nutc_offset = \"-05:00\"\ncoast_orientation_deg = 90.0\n\
-             [levels]\nfile = \"x.csv\"\nunits = \"m\"\n"
-        );
+        let toml = tidetally_test_support::fixtures::gauge_toml(&id);
         state.store.call_blocking(|c| {
             store::put_gauge(
                 c,
-                &GaugeRecord {
+                &StoredGaugeRow {
                     id: id.clone(),
                     toml,
-                    name: format!("Load gauge {i}"),
-                    latitude: 40.0,
-                    longitude: -70.0,
+                    name: format!("Test harbour {id}"),
+                    latitude: 44.12,
+                    longitude: -67.31,
                     updated_at: store::now_rfc3339(),
                 },
             )
         })?;
-        state::install_results(state, &id, filler(&id))?;
+        state::install_results(state, &id, filler(&id)?)?;
     }
     Ok(())
 }
 
 /// A 91-day pmf shaped like a count distribution, to give the body a realistic size.
-fn filler(gauge: &str) -> GaugeResults {
+fn filler(gauge: &str) -> anyhow::Result<GaugeResults> {
     let mean = 6.0_f64;
     let mut pmf = Vec::with_capacity(91);
     let mut p = (-mean).exp();
@@ -72,62 +67,11 @@ fn filler(gauge: &str) -> GaugeResults {
         pmf.push(p);
         p *= mean / f64::from(k + 1);
     }
-    let skill = api::Skill {
-        verdict: api::Verdict::NotMeasured,
-        verdict_text: "Load-test filler.".into(),
-        seasons_scored: 0,
-        season_name: "DJF".into(),
-        scheme: "none".into(),
-        scores: vec![],
-        engine: "count".into(),
-        enso: "at_issue".into(),
-        perfect_enso_text: None,
-    };
-    let outlook = api::Outlook {
-        gauge: gauge.into(),
-        season: "2026-DJF".into(),
-        season_days: 90,
-        exceedance: api::exceedance_from_pmf(&pmf, &[5, 10, 20]),
-        pmf,
-        mean,
-        median: 6,
-        p10: 3,
-        p90: 9,
-        terciles: vec![],
-        climatological_mean: 5.0,
-        last_season_observed: None,
-        drivers: vec![],
-        skill: skill.clone(),
-        cautions: vec!["Load-test filler, not an outlook.".into()],
-        issued_at: "2026-11-20T00:00:00Z".into(),
-        model_version: "load-filler".into(),
-        explanation: vec![],
-        trend_only_mean: None,
-        family: "poisson".into(),
-        fit_period: api::FitPeriod {
-            first: "2000-DJF".into(),
-            last: "2025-DJF".into(),
-            seasons: 26,
-        },
-        notes: vec![],
-        engine: "count".into(),
-        engine_reason: String::new(),
-        other_engine: None,
-        days: vec![],
-        water_effects: vec![],
-    };
-    GaugeResults {
-        model_version: "load-filler".into(),
-        fitted_at: "2026-11-20T00:00:00Z".into(),
-        hindcast: api::Hindcast {
-            gauge: gauge.into(),
-            model_version: "load-filler".into(),
-            method: "none".into(),
-            skill,
-            cases: vec![],
-            engines: vec![],
-        },
-        outlooks: BTreeMap::from([("2026-DJF".to_owned(), outlook)]),
-        driver_inputs: BTreeMap::new(),
+    let mut results: GaugeResults =
+        serde_json::from_value(tidetally_test_support::fixtures::fake_results(gauge, &pmf))?;
+    for outlook in results.outlooks.values_mut() {
+        outlook.exceedance = api::exceedance_from_pmf(&pmf, &[5, 10, 20]);
+        outlook.cautions = vec!["Load-test filler, not an outlook.".into()];
     }
+    Ok(results)
 }

@@ -14,7 +14,7 @@ use crate::upload::GaugeMeta;
 
 /// A response body serialized once, with its strong ETag.
 #[derive(Debug, Clone)]
-pub struct Prepared<T> {
+pub struct SerializedBody<T> {
     /// The value.
     pub value: T,
     /// Its JSON bytes.
@@ -23,7 +23,7 @@ pub struct Prepared<T> {
     pub etag: String,
 }
 
-impl<T: serde::Serialize> Prepared<T> {
+impl<T: serde::Serialize> SerializedBody<T> {
     /// Serializes `value` once.
     pub fn new(value: T) -> Self {
         let body = Bytes::from(serde_json::to_vec(&value).expect("wire types always serialize"));
@@ -37,17 +37,17 @@ impl<T: serde::Serialize> Prepared<T> {
 pub struct ServedModel {
     /// The results.
     pub results: GaugeResults,
-    /// The hindcast, prepared.
-    pub hindcast: Prepared<api::Hindcast>,
-    /// Each outlook with the gauge's default exceedance days, prepared, by season label.
-    pub outlooks: BTreeMap<String, Prepared<api::Outlook>>,
+    /// The hindcast, serialized.
+    pub hindcast: SerializedBody<api::Hindcast>,
+    /// Each outlook with the gauge's default exceedance days, serialized, by season label.
+    pub outlooks: BTreeMap<String, SerializedBody<api::Outlook>>,
     /// Outlooks of other seasons computed on demand from this fit, by season label.
     on_demand: Mutex<BTreeMap<String, OnDemand>>,
 }
 
 /// An outlook computed on demand, or why it could not be (kept too, so a season that cannot
 /// be issued is not recomputed on every request).
-pub type OnDemand = Result<Arc<Prepared<api::Outlook>>, PipelineError>;
+pub type OnDemand = Result<Arc<SerializedBody<api::Outlook>>, PipelineError>;
 
 /// Most on-demand outlooks one fit keeps (older labels are dropped first by label order).
 pub const MAX_ON_DEMAND: usize = 64;
@@ -59,11 +59,11 @@ impl ServedModel {
             outlook.cautions =
                 crate::cautions::with_standard(std::mem::take(&mut outlook.cautions));
         }
-        let hindcast = Prepared::new(results.hindcast.clone());
+        let hindcast = SerializedBody::new(results.hindcast.clone());
         let outlooks = results
             .outlooks
             .iter()
-            .map(|(season, outlook)| (season.clone(), Prepared::new(outlook.clone())))
+            .map(|(season, outlook)| (season.clone(), SerializedBody::new(outlook.clone())))
             .collect();
         Self {
             results,
@@ -81,7 +81,7 @@ impl ServedModel {
     /// Keeps what an on-demand run for `label` gave (bounded by [`MAX_ON_DEMAND`], the
     /// first labels in order dropped first) and returns it prepared.
     pub fn keep(&self, label: &str, outcome: Result<api::Outlook, PipelineError>) -> OnDemand {
-        let kept = outcome.map(|o| Arc::new(Prepared::new(o)));
+        let kept = outcome.map(|o| Arc::new(SerializedBody::new(o)));
         let mut cache = self.cache();
         while cache.len() >= MAX_ON_DEMAND {
             cache.pop_first();
@@ -104,7 +104,7 @@ pub struct GaugeEntry {
     /// The stored water-level record, if any.
     pub record: Option<api::RecordSpan>,
     /// The season table, or why there is none.
-    pub history: Result<Arc<Prepared<api::SeasonHistory>>, PipelineError>,
+    pub history: Result<Arc<SerializedBody<api::SeasonHistory>>, PipelineError>,
     /// The fitted model, or why there is none.
     pub model: Result<Arc<ServedModel>, PipelineError>,
 }

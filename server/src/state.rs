@@ -6,14 +6,15 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use rusqlite::Connection;
+use tidetally_model::fit::{GaugeToml, TextSource};
 use tokio::sync::Semaphore;
 
 use crate::api;
 use crate::auth::Token;
-use crate::catalog::{Catalog, GaugeEntry, Prepared, ServedModel};
+use crate::catalog::{Catalog, GaugeEntry, SerializedBody, ServedModel};
 use crate::etag::etag_of;
 use crate::pipeline::{self, GaugeInputs, GaugeResults, PipelineError, StoredForecast};
-use crate::store::{self, GaugeRecord, SeriesKey, SeriesRecord, Store, StoreError};
+use crate::store::{self, SeriesKey, SeriesRecord, Store, StoreError, StoredGaugeRow};
 use crate::upload::{self, CsvKind, UploadError};
 
 /// Shared by every request handler.
@@ -69,7 +70,7 @@ pub enum SeedError {
 
 /// One gauge of a data folder, read and checked, ready to store.
 struct SeedGauge {
-    record: GaugeRecord,
+    record: StoredGaugeRow,
     levels: store::LevelsRecord,
     series: Vec<SeriesRecord>,
     forecast: Option<(api::EnsoForecast, String)>,
@@ -146,7 +147,7 @@ fn read_seed_gauge(toml_path: &Path, now: &str) -> Result<SeedGauge, SeedError> 
         None => None,
     };
     Ok(SeedGauge {
-        record: GaugeRecord {
+        record: StoredGaugeRow {
             id: meta.id.clone(),
             toml: text,
             name: meta.name.clone(),
@@ -197,10 +198,16 @@ pub fn load_inputs(conn: &Connection, id: &str) -> Result<Option<GaugeInputs>, S
     let Some(gauge) = store::get_gauge(conn, id)? else {
         return Ok(None);
     };
-    let meta = upload::parse_gauge_toml(&gauge.toml).map_err(|e| StoreError::Corrupt {
+    // Validated once here; the pipeline uses the same checked description.
+    let source = TextSource {
+        name: format!("{id}.toml"),
+        text: gauge.toml,
+    };
+    let toml = GaugeToml::parse(source, Path::new("")).map_err(|e| StoreError::Corrupt {
         what: format!("gauge TOML of {id}"),
         message: e.to_string(),
     })?;
+    let meta = upload::GaugeMeta::of(toml.config());
     let series = |key: SeriesKey| -> Result<Option<Vec<u8>>, StoreError> {
         Ok(store::get_series(conn, &key)?.map(|s| s.csv))
     };
@@ -217,7 +224,7 @@ pub fn load_inputs(conn: &Connection, id: &str) -> Result<Option<GaugeInputs>, S
         rmm: series(SeriesKey::Rmm)?,
         wind: series(SeriesKey::Wind(id.to_owned()))?,
         enso_forecasts,
-        toml: gauge.toml,
+        toml,
         meta,
     }))
 }
@@ -249,7 +256,8 @@ pub fn build_entry(
         readings: l.readings,
         uploaded_at: l.uploaded_at.clone(),
     });
-    let history_now = || pipeline::season_history(&inputs).map(|h| Arc::new(Prepared::new(h)));
+    let history_now =
+        || pipeline::season_history(&inputs).map(|h| Arc::new(SerializedBody::new(h)));
     let stored = match source {
         ModelSource::StoredOrBuild => store
             .call_blocking(|c| store::latest_model(c, id))?
@@ -270,7 +278,7 @@ pub fn build_entry(
         Some(results) => (history_now(), Ok(results)),
         None => {
             let (history, model) = pipeline::build_with_history(&inputs);
-            (history.map(|h| Arc::new(Prepared::new(h))), model)
+            (history.map(|h| Arc::new(SerializedBody::new(h))), model)
         }
     };
     if let (Ok(results), None) = (&model, &stored_version) {
@@ -374,10 +382,8 @@ mod tests {
         let dir = std::env::temp_dir().join(format!("tidetally-seed-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&dir);
         std::fs::create_dir_all(&dir).unwrap();
-        let toml = crate::upload::tests_support::EXAMPLE
-            .replace("port-alder-levels.csv.gz", "levels.csv")
-            .replace("enso = \"../drivers/enso-monthly.csv\"\n", "")
-            .replace("wind = \"port-alder-wind.csv\"\n", "");
+        let toml = tidetally_test_support::fixtures::gauge_toml("port-alder")
+            .replace("port-alder-levels.csv", "levels.csv");
         std::fs::write(dir.join("port-alder.toml"), toml).unwrap();
         std::fs::write(
             dir.join("levels.csv"),

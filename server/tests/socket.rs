@@ -5,8 +5,7 @@
 
 mod support;
 
-use std::io::{Read, Write};
-use std::net::{SocketAddr, TcpStream};
+use std::net::SocketAddr;
 use std::path::PathBuf;
 use std::time::Duration;
 
@@ -14,6 +13,7 @@ use support::*;
 use tidetally_server::auth::Token;
 use tidetally_server::store::Store;
 use tidetally_server::{AppState, state};
+use tidetally_test_support::http::request;
 
 /// A fresh folder under the system temp dir, unique to this test process and name.
 fn temp_dir(name: &str) -> PathBuf {
@@ -23,7 +23,7 @@ fn temp_dir(name: &str) -> PathBuf {
     dir
 }
 
-/// One HTTP/1.1 request with `Connection: close`; returns status and body.
+/// One request through the shared test client; returns status and body text.
 fn http(
     addr: SocketAddr,
     method: &str,
@@ -31,50 +31,10 @@ fn http(
     token: Option<&str>,
     body: &[u8],
 ) -> (u16, String) {
-    let mut stream = TcpStream::connect(addr).expect("connect");
-    stream
-        .set_read_timeout(Some(Duration::from_secs(20)))
-        .expect("timeout");
-    let auth = token
-        .map(|t| format!("Authorization: Bearer {t}\r\n"))
-        .unwrap_or_default();
-    let head = format!(
-        "{method} {path} HTTP/1.1\r\nHost: {addr}\r\n{auth}Content-Length: {}\r\nConnection: close\r\n\r\n",
-        body.len()
-    );
-    stream.write_all(head.as_bytes()).expect("write head");
-    stream.write_all(body).expect("write body");
-    let mut raw = Vec::new();
-    stream.read_to_end(&mut raw).expect("read");
-    let text = String::from_utf8_lossy(&raw).into_owned();
-    let (head, body) = text.split_once("\r\n\r\n").expect("a header block");
-    let status = head
-        .split(' ')
-        .nth(1)
-        .and_then(|s| s.parse().ok())
-        .expect("a status");
-    let body = if head
-        .to_ascii_lowercase()
-        .contains("transfer-encoding: chunked")
-    {
-        dechunk(body)
-    } else {
-        body.to_owned()
-    };
-    (status, body)
-}
-
-fn dechunk(mut body: &str) -> String {
-    let mut out = String::new();
-    while let Some((size, rest)) = body.split_once("\r\n") {
-        let n = usize::from_str_radix(size.trim(), 16).unwrap_or(0);
-        if n == 0 {
-            break;
-        }
-        out.push_str(&rest[..n]);
-        body = &rest[n + 2..];
-    }
-    out
+    let auth = token.map(|t| format!("Bearer {t}"));
+    let headers: Vec<(&str, &str)> = auth.iter().map(|a| ("Authorization", a.as_str())).collect();
+    let answer = request(addr, method, path, &headers, body, Duration::from_secs(20));
+    (answer.status, answer.text())
 }
 
 async fn call(

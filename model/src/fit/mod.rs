@@ -24,10 +24,10 @@ pub use model::{CoefficientReport, FitPeriod, GaugeModel, MIN_SEASONS, fit_desig
 pub(crate) use model::{GlmInput, glm_input};
 pub use prepare::{
     GaugeDrivers, PrepareError, PreparedGauge, RecordedGauge, TIDE_MARGIN_M, TidalDriver,
-    TideAnalysis, driver_of, predictor_settings, prepare, prepare_from, record_gauge,
-    sea_level_source, tidal_driver,
+    TideAnalysis, driver_of, predictor_settings, prepare, record_gauge, sea_level_source,
+    tidal_driver,
 };
-pub use sources::{ByteSource, FilesNeeded, GaugeSources, SourceError, TextSource};
+pub use sources::{ByteSource, FilesNeeded, GaugeSources, GaugeToml, SourceError, TextSource};
 
 use crate::glm::FamilyRequest;
 

@@ -139,10 +139,9 @@ pub struct RecordedGauge {
     pub record: LevelRecord,
 }
 
-/// Validates the gauge TOML and decodes the level file (once), building the level record
-/// from the decoded readings.
+/// Decodes the level file (once) and builds the level record from the decoded readings.
 pub fn record_gauge(sources: &GaugeSources) -> Result<RecordedGauge, PrepareError> {
-    let config = sources.config()?;
+    let config = sources.config().clone();
     let name = &sources.levels.name;
     let (levels, summary) = ingest::decode_levels(
         sources.levels.bytes.as_slice(),
@@ -157,18 +156,18 @@ pub fn record_gauge(sources: &GaugeSources) -> Result<RecordedGauge, PrepareErro
     })
 }
 
-/// Prepares a gauge from its sources, parsing each exactly once: the TOML, the level file,
-/// each driver series and the ENSO forecast.
+/// Prepares a gauge from its sources (TOML already validated), parsing each file exactly
+/// once: the level file, each driver series and the ENSO forecast.
 pub fn prepare(sources: &GaugeSources, tide: TideAnalysis) -> Result<PreparedGauge, PrepareError> {
     let recorded = record_gauge(sources)?;
     let drivers = parse_drivers(sources, &recorded, tide)?;
-    let mut prepared = prepare_from(recorded, drivers)?;
+    let mut prepared = assemble(recorded, drivers)?;
     prepared.set_enso_forecast(sources.enso_forecast.as_ref())?;
     Ok(prepared)
 }
 
 /// The gauge's sea-level source from its `[sea_level]` setting; a trend is fitted to the
-/// record's monthly means. A trend that cannot be fitted gives `None` with the reason.
+/// record's monthly means (an error when the record is too short to fit one).
 pub fn sea_level_source(
     setting: &SeaLevelSetting,
     record: &LevelRecord,
@@ -318,11 +317,9 @@ pub fn driver_of(p: Predictor) -> Option<Driver> {
     }
 }
 
-/// Prepares a recorded gauge with already parsed driver series.
-pub fn prepare_from(
-    recorded: RecordedGauge,
-    drivers: GaugeDrivers,
-) -> Result<PreparedGauge, PrepareError> {
+/// A recorded gauge with its parsed driver series -> the prepared gauge: each season's driver
+/// values (or why one is missing), the upcoming seasons' tidal driver.
+fn assemble(recorded: RecordedGauge, drivers: GaugeDrivers) -> Result<PreparedGauge, PrepareError> {
     let RecordedGauge {
         config,
         levels,
@@ -509,7 +506,7 @@ impl PreparedGauge {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
-    use crate::fit::TextSource;
+    use crate::fit::sources::{GaugeToml, TextSource};
 
     /// `days` days of six-hourly readings (invented: a flat 0.2 m with a daily bump).
     fn levels_csv(days: i64) -> Vec<u8> {
@@ -539,12 +536,12 @@ mod tests {
              [levels]\nfile = \"levels.csv\"\nunits = \"m\"\n\
              [model]\npredictors = [\"sea_level\"]\n{extra_toml}"
         );
+        let text = TextSource {
+            name: "g1.toml".into(),
+            text: toml,
+        };
         GaugeSources {
-            toml: TextSource {
-                name: "g1.toml".into(),
-                text: toml,
-            },
-            base_dir: std::path::PathBuf::new(),
+            toml: GaugeToml::parse(text, std::path::Path::new("")).unwrap(),
             levels: ByteSource {
                 name: "levels of g1".into(),
                 bytes: levels_csv(days),

@@ -1,7 +1,8 @@
-//! A gauge's inputs as read, before anything is parsed: the TOML text and each data file's
-//! bytes, each with the name its errors use. [`GaugeSources::read`] fills them from a TOML
-//! file and the files it names (the only place the model opens data files); the service fills
-//! them from its store. [`super::prepare`] parses each exactly once.
+//! A gauge's inputs as read: the TOML text (validated once, when it is read, because it names
+//! the other files) and each data file's bytes, each with the name its errors use.
+//! [`GaugeSources::read`] fills them from a TOML file and the files it names (the only place
+//! the model opens files); the service fills them from its store. [`super::prepare`] parses
+//! each data file exactly once.
 
 use std::path::{Path, PathBuf};
 
@@ -25,13 +26,37 @@ pub struct ByteSource {
     pub bytes: Vec<u8>,
 }
 
+/// A gauge TOML and its validated description, parsed once when it is made.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GaugeToml {
+    source: TextSource,
+    config: GaugeConfig,
+}
+
+impl GaugeToml {
+    /// Validates `source`; data paths in it resolve against `base_dir` (empty for a stored
+    /// TOML, whose data come from the store).
+    pub fn parse(source: TextSource, base_dir: &Path) -> Result<Self, GaugeError> {
+        let config = GaugeConfig::from_toml_str(&source.text, &source.name, base_dir)?;
+        Ok(Self { source, config })
+    }
+
+    /// The TOML as written, with its name.
+    pub fn source(&self) -> &TextSource {
+        &self.source
+    }
+
+    /// The validated description.
+    pub fn config(&self) -> &GaugeConfig {
+        &self.config
+    }
+}
+
 /// Everything a gauge's preparation reads: its TOML and the bytes of the files it uses.
-#[derive(Debug, Clone, PartialEq, Eq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct GaugeSources {
-    /// The gauge TOML.
-    pub toml: TextSource,
-    /// The folder the TOML's data paths are relative to (empty for a stored TOML).
-    pub base_dir: PathBuf,
+    /// The gauge TOML, validated.
+    pub toml: GaugeToml,
     /// The water-level file.
     pub levels: ByteSource,
     /// Monthly ENSO index CSV.
@@ -88,16 +113,13 @@ impl GaugeSources {
             path: toml_path.to_owned(),
             error,
         })?;
-        let toml = TextSource {
-            name: toml_path.file_name().map_or_else(
-                || toml_path.display().to_string(),
-                |n| n.to_string_lossy().into_owned(),
-            ),
-            text,
-        };
-        let base_dir = toml_path.parent().unwrap_or(Path::new("")).to_owned();
-        // The TOML names the files; `prepare` validates it again with their contents.
-        let files = GaugeConfig::from_toml_str(&toml.text, &toml.name, &base_dir)?;
+        let name = toml_path.file_name().map_or_else(
+            || toml_path.display().to_string(),
+            |n| n.to_string_lossy().into_owned(),
+        );
+        let base_dir = toml_path.parent().unwrap_or(Path::new(""));
+        let toml = GaugeToml::parse(TextSource { name, text }, base_dir)?;
+        let files = toml.config();
         let read = |path: &Option<PathBuf>| match (needed, path) {
             (FilesNeeded::All, Some(p)) => read_bytes(p).map(Some),
             _ => Ok(None),
@@ -109,12 +131,11 @@ impl GaugeSources {
             wind: read(&files.drivers.wind)?,
             enso_forecast: read(&files.drivers.enso_forecast)?,
             toml,
-            base_dir,
         })
     }
 
-    /// The validated gauge description of [`GaugeSources::toml`].
-    pub fn config(&self) -> Result<GaugeConfig, GaugeError> {
-        GaugeConfig::from_toml_str(&self.toml.text, &self.toml.name, &self.base_dir)
+    /// The validated gauge description.
+    pub fn config(&self) -> &GaugeConfig {
+        self.toml.config()
     }
 }

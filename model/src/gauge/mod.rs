@@ -1,6 +1,6 @@
 //! A gauge's description: the per-gauge TOML (format in DEVELOPERS.md, "Gauge TOML") validated
-//! into a [`GaugeConfig`] with typed fields ([`validate`]), and the gauge's level record built
-//! from its decoded readings ([`record`]).
+//! into a [`GaugeConfig`] with typed fields (`validate.rs`), and the gauge's level record
+//! ([`LevelRecord`], `record.rs`) built from its decoded readings.
 //!
 //! Nothing here opens a file: the TOML arrives as text, the readings as a decoded series
 //! (`fit::GaugeSources` reads the files).

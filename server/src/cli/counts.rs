@@ -88,7 +88,7 @@ pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
 /// level file (the readings themselves are not kept).
 fn load(args: &super::GaugeArgs) -> anyhow::Result<(GaugeConfig, LevelRecord)> {
     let sources = GaugeSources::read(&args.gauge, FilesNeeded::Levels)?;
-    let config = sources.config()?;
+    let config = sources.config().clone();
     let levels = &sources.levels;
     let summary = ingest::summarize(
         levels.bytes.as_slice(),

@@ -5,9 +5,8 @@
 use anyhow::Context;
 use chrono::{DateTime, NaiveDate};
 use serde::Serialize;
-use tidetally_model::fit::{FilesNeeded, GaugeSources};
+use tidetally_model::fit::{self, FilesNeeded, GaugeSources};
 use tidetally_model::gauge::GaugeConfig;
-use tidetally_model::ingest;
 use tidetally_model::season::{Season, season_of};
 use tidetally_model::tide::{AnalysisParams, RiskCalendar, RiskParams};
 
@@ -43,13 +42,11 @@ pub(super) fn run(args: TideRiskArgs) -> anyhow::Result<()> {
 
 fn risk_output(args: &TideRiskArgs) -> anyhow::Result<RiskJson> {
     let sources = GaugeSources::read(&args.gauge, FilesNeeded::Levels)?;
-    let config = sources.config()?;
-    let levels = &sources.levels;
-    let series = ingest::read_levels(
-        levels.bytes.as_slice(),
-        &config.ingest_options(),
-        &levels.name,
-    )?;
+    let fit::RecordedGauge {
+        config,
+        levels: series,
+        ..
+    } = fit::record_gauge(&sources)?;
     let last = *series
         .times
         .last()

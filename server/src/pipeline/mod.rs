@@ -16,7 +16,7 @@ use std::collections::BTreeMap;
 use serde::{Deserialize, Serialize};
 
 use tidetally_model::drivers::EnsoCategory;
-use tidetally_model::fit::{self, PreparedGauge, TideAnalysis};
+use tidetally_model::fit::{self, GaugeToml, PreparedGauge, TideAnalysis};
 use tidetally_model::outlook::{self as model_outlook, IssueOptions};
 use tidetally_model::season::Season;
 
@@ -57,8 +57,8 @@ pub enum PipelineError {
 pub struct GaugeInputs {
     /// The checked gauge description.
     pub meta: GaugeMeta,
-    /// The gauge TOML text.
-    pub toml: String,
+    /// The stored gauge TOML, validated once when it was read from the store.
+    pub toml: GaugeToml,
     /// The water-level record.
     pub levels: Option<LevelsRecord>,
     /// Monthly ENSO CSV.
@@ -199,7 +199,7 @@ fn season_row_with_drivers(
 
 /// Version of a fit: this build's version and a hash of every input.
 fn model_version(inputs: &GaugeInputs) -> String {
-    let mut parts: Vec<String> = vec![etag_of(inputs.toml.as_bytes())];
+    let mut parts: Vec<String> = vec![etag_of(inputs.toml.source().text.as_bytes())];
     parts.extend(inputs.levels.iter().map(|l| l.content_hash.clone()));
     for series in [&inputs.enso, &inputs.rmm, &inputs.wind] {
         parts.push(series.as_deref().map_or_else(String::new, etag_of));
@@ -349,11 +349,15 @@ mod tests {
 
     #[test]
     fn a_gauge_without_levels_says_what_to_upload() {
-        let meta = crate::upload::parse_gauge_toml(crate::upload::tests_support::EXAMPLE)
-            .expect("example parses");
+        let text = tidetally_test_support::fixtures::gauge_toml("port-alder");
+        let source = tidetally_model::fit::TextSource {
+            name: "port-alder.toml".into(),
+            text,
+        };
+        let toml = GaugeToml::parse(source, std::path::Path::new("")).expect("example parses");
         let inputs = GaugeInputs {
-            meta,
-            toml: String::new(),
+            meta: crate::upload::GaugeMeta::of(toml.config()),
+            toml,
             levels: None,
             enso: None,
             rmm: None,

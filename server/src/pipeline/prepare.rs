@@ -1,10 +1,9 @@
-//! Stored inputs -> the model's [`GaugeSources`]: the stored TOML text and the stored bytes of
-//! the gauge's levels, driver series and ENSO forecast, each named for error messages. The
-//! model's `fit::prepare` parses them, exactly as it parses the files a TOML names.
+//! Stored inputs -> the model's [`GaugeSources`]: the stored TOML (validated once when read
+//! from the store) and the stored bytes of the gauge's levels, driver series and ENSO
+//! forecast, each named for error messages. The model's `fit::prepare` parses them, exactly as
+//! it parses the files a TOML names.
 
-use std::path::PathBuf;
-
-use tidetally_model::fit::{ByteSource, GaugeSources, TextSource};
+use tidetally_model::fit::{ByteSource, GaugeSources};
 use tidetally_model::season::Season;
 
 use super::{GaugeInputs, PipelineError};
@@ -28,12 +27,7 @@ pub(super) fn sources(
         })
     };
     Ok(GaugeSources {
-        toml: TextSource {
-            name: format!("{id}.toml"),
-            text: inputs.toml.clone(),
-        },
-        // A stored TOML has no folder; its data come from the store.
-        base_dir: PathBuf::new(),
+        toml: inputs.toml.clone(),
         levels: ByteSource {
             name: format!("water levels of gauge {id}"),
             bytes: levels.csv.clone(),

@@ -87,47 +87,20 @@ mod tests {
             let (b0, b1) = (below_b(0), below_b(1));
             [b0, b1 - b0, 1.0 - b1]
         };
-        api::Outlook {
-            gauge: "g".into(),
-            season: "2026-DJF".into(),
-            season_days: u32::try_from(pmf.len() - 1).unwrap(),
-            exceedance: api::exceedance_from_pmf(&pmf, k),
-            pmf,
-            mean: 0.0,
-            median: 0,
-            p10: 0,
-            p90: 0,
-            terciles: vec![api::Terciles {
-                reference: api::TercileReference::Climatology1991To2020,
-                edges,
-                below: cats[0],
-                near: cats[1],
-                above: cats[2],
-                edge_lower_shares: lower_shares,
-                reference_mean: 1.0,
-            }],
-            climatological_mean: 1.0,
-            last_season_observed: None,
-            drivers: vec![],
-            skill: super::super::convert::skill_not_measured("DJF", "test"),
-            cautions: vec!["c".into()],
-            issued_at: "2026-11-20T00:00:00Z".into(),
-            model_version: "t".into(),
-            explanation: vec![],
-            trend_only_mean: None,
-            family: "poisson".into(),
-            fit_period: api::FitPeriod {
-                first: "2000-DJF".into(),
-                last: "2025-DJF".into(),
-                seasons: 26,
-            },
-            notes: vec![],
-            engine: "count".into(),
-            engine_reason: String::new(),
-            other_engine: None,
-            days: vec![],
-            water_effects: vec![],
-        }
+        let fake = tidetally_test_support::fixtures::fake_outlook("g", &pmf);
+        let mut outlook: api::Outlook = serde_json::from_value(fake).unwrap();
+        outlook.season_days = u32::try_from(pmf.len() - 1).unwrap();
+        outlook.exceedance = api::exceedance_from_pmf(&pmf, k);
+        outlook.terciles = vec![api::Terciles {
+            reference: api::TercileReference::Climatology1991To2020,
+            edges,
+            below: cats[0],
+            near: cats[1],
+            above: cats[2],
+            edge_lower_shares: lower_shares,
+            reference_mean: 1.0,
+        }];
+        outlook
     }
 
     fn row(flood_days: u32, used_in_fit: bool) -> api::SeasonRow {

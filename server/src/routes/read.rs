@@ -1,4 +1,4 @@
-//! Read endpoints. Prepared bodies are served as cloned `Bytes` with their ETag; only an
+//! Read endpoints. SerializedBody bodies are served as cloned `Bytes` with their ETag; only an
 //! outlook of a season the fit did not issue is computed (once, off the runtime, then kept).
 
 use std::sync::Arc;
@@ -13,7 +13,7 @@ use serde::Deserialize;
 use tidetally_model::season::Season;
 
 use crate::api;
-use crate::catalog::{GaugeEntry, OnDemand, Prepared, ServedModel};
+use crate::catalog::{GaugeEntry, OnDemand, SerializedBody, ServedModel};
 use crate::error::AppError;
 use crate::pipeline;
 use crate::query;
@@ -37,7 +37,7 @@ fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
 }
 
 /// A prepared JSON body with its ETag.
-fn prepared<T>(p: &Prepared<T>, content_type: &'static str) -> Response {
+fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
     let mut response = p.body.clone().into_response();
     let headers = response.headers_mut();
     headers.insert(header::CONTENT_TYPE, HeaderValue::from_static(content_type));

@@ -16,7 +16,7 @@ use crate::error::AppError;
 use crate::etag::etag_of;
 use crate::pipeline::PipelineError;
 use crate::state::{AppState, ModelSource, build_entry};
-use crate::store::{self, GaugeRecord, SeriesKey, SeriesRecord};
+use crate::store::{self, SeriesKey, SeriesRecord, StoredGaugeRow};
 use crate::upload::{self, CsvKind, UploadError};
 
 fn body_of(body: Result<Bytes, BytesRejection>) -> Result<Bytes, AppError> {
@@ -93,7 +93,7 @@ pub async fn put_gauge(
                 meta.id
             )));
         }
-        let record = GaugeRecord {
+        let record = StoredGaugeRow {
             id: meta.id.clone(),
             toml: text.to_owned(),
             name: meta.name.clone(),

@@ -6,7 +6,7 @@ use super::StoreError;
 
 /// A stored gauge.
 #[derive(Debug, Clone, PartialEq)]
-pub struct GaugeRecord {
+pub struct StoredGaugeRow {
     /// Gauge id.
     pub id: String,
     /// The gauge TOML as uploaded (already validated).
@@ -22,7 +22,7 @@ pub struct GaugeRecord {
 }
 
 /// Inserts or replaces a gauge.
-pub fn put_gauge(conn: &mut Connection, gauge: &GaugeRecord) -> Result<(), StoreError> {
+pub fn put_gauge(conn: &mut Connection, gauge: &StoredGaugeRow) -> Result<(), StoreError> {
     let tx = conn.transaction()?;
     tx.execute(
         "INSERT INTO gauges (id, toml, name, latitude, longitude, updated_at)
@@ -51,8 +51,8 @@ pub fn delete_gauge(conn: &mut Connection, id: &str) -> Result<bool, StoreError>
     Ok(n > 0)
 }
 
-fn from_row(row: &rusqlite::Row<'_>) -> rusqlite::Result<GaugeRecord> {
-    Ok(GaugeRecord {
+fn from_row(row: &rusqlite::Row<'_>) -> rusqlite::Result<StoredGaugeRow> {
+    Ok(StoredGaugeRow {
         id: row.get(0)?,
         toml: row.get(1)?,
         name: row.get(2)?,
@@ -63,7 +63,7 @@ fn from_row(row: &rusqlite::Row<'_>) -> rusqlite::Result<GaugeRecord> {
 }
 
 /// All gauges, ordered by id.
-pub fn list_gauges(conn: &Connection) -> Result<Vec<GaugeRecord>, StoreError> {
+pub fn list_gauges(conn: &Connection) -> Result<Vec<StoredGaugeRow>, StoreError> {
     let mut stmt = conn.prepare(
         "SELECT id, toml, name, latitude, longitude, updated_at FROM gauges ORDER BY id",
     )?;
@@ -72,7 +72,7 @@ pub fn list_gauges(conn: &Connection) -> Result<Vec<GaugeRecord>, StoreError> {
 }
 
 /// One gauge.
-pub fn get_gauge(conn: &Connection, id: &str) -> Result<Option<GaugeRecord>, StoreError> {
+pub fn get_gauge(conn: &Connection, id: &str) -> Result<Option<StoredGaugeRow>, StoreError> {
     Ok(conn
         .query_row(
             "SELECT id, toml, name, latitude, longitude, updated_at FROM gauges WHERE id = ?1",

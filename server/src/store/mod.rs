@@ -24,7 +24,7 @@ use std::sync::{Arc, Mutex};
 use rusqlite::Connection;
 
 pub use blobs::{gunzip_all, gzip};
-pub use gauges::{GaugeRecord, delete_gauge, get_gauge, list_gauges, put_gauge};
+pub use gauges::{StoredGaugeRow, delete_gauge, get_gauge, list_gauges, put_gauge};
 pub use models::{FittedModelRecord, latest_model, put_model};
 pub use outlooks::{IssuedFilter, IssuedRecord, list_issued, record_issued};
 pub use schema::SCHEMA_VERSION;

@@ -247,7 +247,7 @@ pub fn get_forecasts(conn: &Connection) -> Result<Vec<(String, String)>, StoreEr
 
 #[cfg(test)]
 mod tests {
-    use super::super::{GaugeRecord, Store, put_gauge};
+    use super::super::{Store, StoredGaugeRow, put_gauge};
     use super::*;
 
     fn store_with_gauge() -> Store {
@@ -256,7 +256,7 @@ mod tests {
             .call_blocking(|c| {
                 put_gauge(
                     c,
-                    &GaugeRecord {
+                    &StoredGaugeRow {
                         id: "g".into(),
                         toml: "id = \"g\"".into(),
                         name: "G".into(),

@@ -58,25 +58,33 @@ pub struct GaugeMeta {
 /// they stay exactly as written (relative to wherever the TOML is later placed).
 pub fn parse_gauge_toml(text: &str) -> Result<GaugeMeta, UploadError> {
     let config = GaugeConfig::from_toml_str(text, WHAT, Path::new("")).map_err(gauge_error)?;
-    let path = |p: &Path| p.to_string_lossy().into_owned();
-    Ok(GaugeMeta {
-        utc_offset: config.utc_offset.to_string(),
-        levels_file: path(&config.levels.file),
-        drivers: DriverFiles {
-            enso: config.drivers.enso.as_deref().map(path),
-            rmm: config.drivers.rmm.as_deref().map(path),
-            wind: config.drivers.wind.as_deref().map(path),
-            enso_forecast: config.drivers.enso_forecast.as_deref().map(path),
-        },
-        exceed_days: config.model.exceed_days,
-        seasons: config.seasons.specs,
-        id: config.id,
-        name: config.name,
-        latitude: config.latitude,
-        longitude: config.longitude,
-        datum: config.datum,
-        flood_threshold_m: config.flood_threshold_m,
-    })
+    Ok(GaugeMeta::of(&config))
+}
+
+impl GaugeMeta {
+    /// What the service needs of a validated gauge description.
+    pub fn of(config: &GaugeConfig) -> Self {
+        let config = config.clone();
+        let path = |p: &Path| p.to_string_lossy().into_owned();
+        GaugeMeta {
+            utc_offset: config.utc_offset.to_string(),
+            levels_file: path(&config.levels.file),
+            drivers: DriverFiles {
+                enso: config.drivers.enso.as_deref().map(path),
+                rmm: config.drivers.rmm.as_deref().map(path),
+                wind: config.drivers.wind.as_deref().map(path),
+                enso_forecast: config.drivers.enso_forecast.as_deref().map(path),
+            },
+            exceed_days: config.model.exceed_days,
+            seasons: config.seasons.specs,
+            id: config.id,
+            name: config.name,
+            latitude: config.latitude,
+            longitude: config.longitude,
+            datum: config.datum,
+            flood_threshold_m: config.flood_threshold_m,
+        }
+    }
 }
 
 /// The model's error with the upload's label in place of a file name.
@@ -99,11 +107,18 @@ fn gauge_error(error: GaugeError) -> UploadError {
 mod tests {
     use super::*;
 
-    use crate::upload::tests_support::EXAMPLE;
+    /// The example of DEVELOPERS.md, "Gauge TOML", read from the document itself.
+    fn documented_example() -> String {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("../DEVELOPERS.md");
+        let doc = std::fs::read_to_string(&path).unwrap();
+        let section = doc.split_once("### Gauge TOML").unwrap().1;
+        let block = section.split_once("```toml\n").unwrap().1;
+        block.split_once("```").unwrap().0.to_owned()
+    }
 
     #[test]
     fn the_documented_example_parses() {
-        let g = parse_gauge_toml(EXAMPLE).unwrap();
+        let g = parse_gauge_toml(&documented_example()).unwrap();
         assert_eq!(g.id, "port-alder");
         assert_eq!(g.seasons.len(), 1);
         assert_eq!(g.seasons[0].name(), "NDJFM");
@@ -114,7 +129,7 @@ mod tests {
         );
         assert_eq!(g.levels_file, "port-alder-levels.csv.gz");
         assert_eq!(g.drivers.wind.as_deref(), Some("port-alder-wind.csv"));
-        assert_eq!(g.drivers.rmm, None);
+        assert_eq!(g.drivers.rmm.as_deref(), Some("../drivers/rmm-daily.csv"));
         assert_eq!(g.utc_offset, "-05:00");
         assert_eq!((g.latitude, g.longitude), (44.12, -67.31));
         assert_eq!((g.datum.as_str(), g.flood_threshold_m), ("STND", 0.85));
@@ -122,6 +137,7 @@ mod tests {
 
     #[test]
     fn bad_fields_are_named() {
+        let example = documented_example();
         let cases = [
             ("id = \"port-alder\"", "id = \"Port Alder\"", "field id"),
             ("latitude = 44.12", "latitude = 144.12", "field latitude"),
@@ -143,17 +159,21 @@ mod tests {
             ),
         ];
         for (from, to, expected) in cases {
-            let text = EXAMPLE.replace(from, to);
+            let text = example.replace(from, to);
             let err = parse_gauge_toml(&text).unwrap_err().to_string();
             assert!(err.contains(expected), "{to}: {err}");
         }
-        let unknown = EXAMPLE.replace("datum = \"STND\"", "datum = \"STND\"\ncolour = \"blue\"");
+        let unknown = example.replace("datum = \"STND\"", "colour = \"blue\"\ndatum = \"STND\"");
         let err = parse_gauge_toml(&unknown).unwrap_err().to_string();
         assert!(
             err.starts_with("gauge TOML: ") && err.contains("colour"),
             "{err}"
         );
-        let missing = EXAMPLE.replace("datum = \"STND\"\n", "");
+        let missing: String = example
+            .lines()
+            .filter(|l| !l.starts_with("datum ="))
+            .map(|l| format!("{l}\n"))
+            .collect();
         let err = parse_gauge_toml(&missing).unwrap_err().to_string();
         assert!(err.contains("datum"), "{err}");
     }

@@ -96,39 +96,6 @@ pub enum UploadError {
     },
 }
 
-/// Shared test inputs.
-#[cfg(test)]
-pub(crate) mod tests_support {
-    /// The example of DEVELOPERS.md, "Gauge TOML".
-    pub const EXAMPLE: &str = r#"
-id = "port-alder"
-name = "Port Alder harbour"
-latitude = 44.12
-longitude = -67.31
-datum = "STND"
-flood_threshold_m = 0.85
-utc_offset = "-05:00"
-coast_orientation_deg = 135.0
-
-[levels]
-file = "port-alder-levels.csv.gz"
-units = "m"
-missing_sentinel = -99999.0
-
-[seasons]
-custom = [{ name = "NDJFM", start_month = 11, months = 5 }]
-min_completeness = 0.8
-
-[drivers]
-enso = "../drivers/enso-monthly.csv"
-wind = "port-alder-wind.csv"
-
-[model]
-family = "auto"
-exceed_days = [10, 5, 20]
-"#;
-}
-
 #[cfg(test)]
 mod demo_files {
     use super::*;

@@ -1,15 +1,14 @@
-//! Helpers shared by the service tests: a state over an in-memory store, requests through
-//! `oneshot`, and a small synthetic gauge.
+//! Helpers of the service tests that need the service's own types: a state over an
+//! in-memory store, requests through `oneshot`, uploads and fake results. The example gauge,
+//! the fake outlook and the socket client come from `tidetally-test-support`.
 #![allow(dead_code)]
 
-use std::collections::BTreeMap;
 use std::sync::Arc;
 use std::time::Duration;
 
 use axum::Router;
 use axum::body::Body;
 use axum::http::{HeaderMap, Request, StatusCode};
-use tidetally_server::api;
 use tidetally_server::auth::Token;
 use tidetally_server::pipeline::GaugeResults;
 use tidetally_server::store::Store;
@@ -19,28 +18,7 @@ use tower::ServiceExt;
 /// The write token of the tests.
 pub const TOKEN: &str = "test-token-0123456789";
 
-/// A gauge TOML in the documented format (DEVELOPERS.md, "Gauge TOML").
-pub fn gauge_toml(id: &str) -> String {
-    format!(
-        r#"id = "{id}"
-name = "Test harbour {id}"
-latitude = 44.12
-longitude = -67.31
-datum = "STND"
-flood_threshold_m = 0.85
-utc_offset = "-05:00"
-coast_orientation_deg = 135.0
-
-[levels]
-file = "{id}-levels.csv"
-units = "m"
-"#
-    )
-}
-
-/// A few hours of water levels.
-pub const LEVELS_CSV: &str = "time,level\n2020-01-01T00:00:00Z,0.10\n2020-01-01T01:00:00Z,0.30\n\
-2020-01-01T02:00:00Z,\n2020-01-01T03:00:00Z,0.90\n";
+pub use tidetally_test_support::fixtures::{LEVELS_CSV, gauge_toml};
 
 /// A state over an in-memory store, loaded, with writes enabled or not.
 pub fn state(writes: bool) -> Arc<AppState> {
@@ -134,67 +112,8 @@ pub async fn write(app: &Router, method: &str, uri: &str, body: impl Into<Vec<u8
 /// Hand-made results for wiring tests: a three-day pmf for `2026-DJF`. These numbers test the
 /// service's plumbing only, not any model.
 pub fn synthetic_results(gauge: &str) -> GaugeResults {
-    let skill = api::Skill {
-        verdict: api::Verdict::NotMeasured,
-        verdict_text: "Not yet measured out of sample.".into(),
-        seasons_scored: 0,
-        season_name: "DJF".into(),
-        scheme: "leave_one_year_out".into(),
-        scores: vec![],
-        engine: "count".into(),
-        enso: "at_issue".into(),
-        perfect_enso_text: None,
-    };
-    let outlook = api::Outlook {
-        gauge: gauge.into(),
-        season: "2026-DJF".into(),
-        season_days: 90,
-        pmf: vec![0.5, 0.3, 0.2],
-        mean: 0.7,
-        median: 0,
-        p10: 0,
-        p90: 2,
-        exceedance: vec![api::Exceedance {
-            days: 5,
-            probability: 0.0,
-        }],
-        terciles: vec![],
-        climatological_mean: 1.0,
-        last_season_observed: None,
-        drivers: vec![],
-        skill: skill.clone(),
-        cautions: vec!["A seasonal probability, not a warning.".into()],
-        issued_at: "2026-11-20T00:00:00Z".into(),
-        model_version: "synthetic-1".into(),
-        explanation: vec![],
-        trend_only_mean: None,
-        family: "poisson".into(),
-        fit_period: api::FitPeriod {
-            first: "2000-DJF".into(),
-            last: "2025-DJF".into(),
-            seasons: 26,
-        },
-        notes: vec![],
-        engine: "count".into(),
-        engine_reason: "Synthetic.".into(),
-        other_engine: None,
-        days: vec![],
-        water_effects: vec![],
-    };
-    GaugeResults {
-        model_version: "synthetic-1".into(),
-        fitted_at: "2026-11-20T00:00:00Z".into(),
-        hindcast: api::Hindcast {
-            gauge: gauge.into(),
-            model_version: "synthetic-1".into(),
-            method: "leave-one-season-out".into(),
-            skill,
-            cases: vec![],
-            engines: vec![],
-        },
-        outlooks: BTreeMap::from([("2026-DJF".to_owned(), outlook)]),
-        driver_inputs: BTreeMap::from([("2026-DJF".to_owned(), serde_json::json!({"enso": -0.9}))]),
-    }
+    let fake = tidetally_test_support::fixtures::fake_results(gauge, &[0.5, 0.3, 0.2]);
+    serde_json::from_value(fake).expect("the fake results have the wire shape")
 }
 
 /// Uploads a gauge and its levels through the API.

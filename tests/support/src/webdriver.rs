@@ -1,105 +1,28 @@
-//! A tiny W3C WebDriver client over `std::net::TcpStream` (JSON over HTTP/1.1, one
-//! connection per command), and a plain HTTP GET for reading the service directly.
+//! A tiny W3C WebDriver client over [`crate::http`] (JSON over HTTP/1.1, one connection per
+//! command), and a JSON request for reading the service directly.
 
-use std::io::{Read, Write};
 use std::net::{SocketAddr, TcpStream};
 use std::time::{Duration, Instant};
 
 use serde_json::{Value, json};
 
-/// An HTTP answer: status, lower-cased header block and body bytes.
-pub struct HttpAnswer {
-    /// The status code.
-    pub status: u16,
-    /// The header block, lower-cased.
-    pub head: String,
-    /// The body, de-chunked.
-    pub body: Vec<u8>,
-}
+pub use crate::http::HttpAnswer;
+use crate::http::request;
 
-impl HttpAnswer {
-    /// The body as JSON.
-    pub fn json(&self) -> Value {
-        serde_json::from_slice(&self.body)
-            .unwrap_or_else(|e| panic!("not JSON ({e}): {}", String::from_utf8_lossy(&self.body)))
-    }
-}
-
-/// One HTTP/1.1 request with `Connection: close`.
+/// One JSON request to a WebDriver (or the service) with `Connection: close`.
 pub fn http(addr: SocketAddr, method: &str, path: &str, body: Option<&Value>) -> HttpAnswer {
-    let mut stream = TcpStream::connect(addr).unwrap_or_else(|e| panic!("connect {addr}: {e}"));
-    stream
-        .set_read_timeout(Some(Duration::from_secs(90)))
-        .expect("read timeout");
     let payload = body.map(|b| b.to_string()).unwrap_or_default();
-    let head = format!(
-        "{method} {path} HTTP/1.1\r\nHost: {addr}\r\nAccept: application/json\r\n\
-         Content-Type: application/json; charset=utf-8\r\nContent-Length: {}\r\nConnection: close\r\n\r\n",
-        payload.len()
-    );
-    stream.write_all(head.as_bytes()).expect("write head");
-    stream.write_all(payload.as_bytes()).expect("write body");
-    let raw = read_answer(&mut stream)
-        .unwrap_or_else(|e| panic!("{method} {path} on {addr}: no answer ({e})"));
-    let split = raw
-        .windows(4)
-        .position(|w| w == b"\r\n\r\n")
-        .expect("a header block");
-    let head = String::from_utf8_lossy(&raw[..split]).to_ascii_lowercase();
-    let mut body = raw[split + 4..].to_vec();
-    if head.contains("transfer-encoding: chunked") {
-        body = dechunk(&body);
-    }
-    let status = head
-        .split(' ')
-        .nth(1)
-        .and_then(|s| s.parse().ok())
-        .expect("a status code");
-    HttpAnswer { status, head, body }
-}
-
-/// Reads one answer: up to its `Content-Length`, its last chunk, or the end of the stream
-/// (some drivers keep the connection open despite `Connection: close`).
-fn read_answer(stream: &mut TcpStream) -> std::io::Result<Vec<u8>> {
-    let mut raw = Vec::new();
-    let mut buf = [0u8; 16384];
-    loop {
-        let n = stream.read(&mut buf)?;
-        if n == 0 {
-            return Ok(raw);
-        }
-        raw.extend_from_slice(&buf[..n]);
-        let Some(split) = raw.windows(4).position(|w| w == b"\r\n\r\n") else {
-            continue;
-        };
-        let head = String::from_utf8_lossy(&raw[..split]).to_ascii_lowercase();
-        let body = &raw[split + 4..];
-        let length = head
-            .lines()
-            .find_map(|l| l.strip_prefix("content-length:"))
-            .and_then(|v| v.trim().parse::<usize>().ok());
-        match length {
-            Some(len) if body.len() >= len => return Ok(raw),
-            None if head.contains("transfer-encoding: chunked") && body.ends_with(b"0\r\n\r\n") => {
-                return Ok(raw);
-            }
-            _ => {}
-        }
-    }
-}
-
-fn dechunk(mut body: &[u8]) -> Vec<u8> {
-    let mut out = Vec::new();
-    while let Some(end) = body.windows(2).position(|w| w == b"\r\n") {
-        let size = std::str::from_utf8(&body[..end]).unwrap_or("0");
-        let n = usize::from_str_radix(size.trim(), 16).unwrap_or(0);
-        if n == 0 {
-            break;
-        }
-        out.extend_from_slice(&body[end + 2..end + 2 + n]);
-        body = &body[end + 4 + n..];
-    }
-    out
+    request(
+        addr,
+        method,
+        path,
+        &[
+            ("Accept", "application/json"),
+            ("Content-Type", "application/json; charset=utf-8"),
+        ],
+        payload.as_bytes(),
+        Duration::from_secs(90),
+    )
 }
 
 /// A WebDriver session on a driver listening at `driver`.

@@ -1,1 +1,0 @@
-//! Shared helpers for tidetally's end-to-end and reference-check tests.
