@@ -104,6 +104,7 @@ mod tests {
                         Some(PoolDay {
                             value: x,
                             enso: 0.0,
+                            lead: 0.0,
                         })
                     })
                     .collect()

@@ -46,6 +46,19 @@ pub struct WaterDay {
     pub wind: Option<f64>,
 }
 
+/// Days before a season whose weather is known when its outlook is issued.
+pub const LEAD_IN_DAYS: usize = 10;
+
+/// The state of the water and the MJO just before a season: known at issue time, and the
+/// start of the weather the season inherits.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct LeadIn {
+    /// The [`LEAD_IN_DAYS`] days before the season (observed residual and the month's ENSO).
+    pub days: Vec<WaterDay>,
+    /// RMM1 and RMM2 on the day before the season.
+    pub rmm: Option<(f64, f64)>,
+}
+
 /// The days of one season.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SeasonWater {
@@ -53,6 +66,8 @@ pub struct SeasonWater {
     pub season: Season,
     /// Its days, in order (all calendar days).
     pub days: Vec<WaterDay>,
+    /// The days just before it.
+    pub lead_in: LeadIn,
 }
 
 impl SeasonWater {
@@ -76,6 +91,13 @@ pub struct DayDrivers<'a> {
     pub rmm: Option<(&'a RmmSeries, &'a PhaseSet)>,
     /// Wind and the coast that turns it along-shore.
     pub wind: Option<(&'a WindSeries, &'a Coast)>,
+}
+
+impl DayDrivers<'_> {
+    /// RMM1 and RMM2 of `date`.
+    pub fn rmm_of(&self, date: NaiveDate) -> Option<(f64, f64)> {
+        self.rmm.and_then(|(series, _)| series.components(date))
+    }
 }
 
 impl DayDrivers<'_> {
@@ -137,19 +159,19 @@ impl DayGrid {
             .collect()
     }
 
-    /// The days of `season`, with no observation (for a season ahead).
-    pub fn future_days(
+    /// `days` days from `first` with their predicted high water and drivers, no observation.
+    fn unobserved(
         &self,
         tide: &TideModel,
-        season: &Season,
+        first: NaiveDate,
+        days: u32,
         drivers: &DayDrivers<'_>,
-    ) -> SeasonWater {
-        let highs = self.predicted_highs(tide, season.first_day(), season.calendar_days());
-        let days = highs
+    ) -> Vec<WaterDay> {
+        self.predicted_highs(tide, first, days)
             .into_iter()
             .enumerate()
             .map(|(i, predicted_high)| {
-                let date = season.first_day() + chrono::Duration::days(i as i64);
+                let date = first + chrono::Duration::days(i as i64);
                 let (enso, mjo_in_phases, mjo_opposite, wind) = drivers.of(date);
                 WaterDay {
                     date,
@@ -163,10 +185,20 @@ impl DayGrid {
                     wind,
                 }
             })
-            .collect();
+            .collect()
+    }
+
+    /// The days of `season`, with no observation (for a season ahead) and no lead-in.
+    pub fn future_days(
+        &self,
+        tide: &TideModel,
+        season: &Season,
+        drivers: &DayDrivers<'_>,
+    ) -> SeasonWater {
         SeasonWater {
             season: season.clone(),
-            days,
+            days: self.unobserved(tide, season.first_day(), season.calendar_days(), drivers),
+            lead_in: LeadIn::default(),
         }
     }
 }
@@ -188,16 +220,20 @@ pub fn season_days(
     let last = daily.last_date();
     let offset = i64::from(grid.utc_offset_seconds);
     let mut out = Vec::new();
-    for year in first.year() - 1..=last.year() {
+    let lead = chrono::Duration::days(LEAD_IN_DAYS as i64);
+    for year in first.year() - 1..=last.year() + 1 {
         let Ok(season) = Season::new(year, spec.clone()) else {
             continue;
         };
-        if season.last_day() < first || season.first_day() > last {
+        // Every season overlapping the record, and the next one whose lead-in it holds.
+        if season.last_day() < first || season.first_day() - lead > last {
             continue;
         }
-        let mut water = grid.future_days(tide, &season, drivers);
-        // Readings of the season, predicted at their own times.
-        let start = grid.day_start(season.first_day());
+        let lead_first = season.first_day() - lead;
+        let mut all = grid.unobserved(tide, lead_first, LEAD_IN_DAYS as u32, drivers);
+        all.extend(grid.unobserved(tide, season.first_day(), season.calendar_days(), drivers));
+        // Readings of the lead-in and the season, predicted at their own times.
+        let start = grid.day_start(lead_first);
         let end = grid.day_start(season.end_exclusive());
         let lo = levels.times.partition_point(|&t| t < start);
         let hi = levels.times.partition_point(|&t| t < end);
@@ -216,11 +252,8 @@ pub fn season_days(
             let Some(record_day) = daily.day(date) else {
                 continue;
             };
-            let index = (date - season.first_day()).num_days();
-            let Some(slot) = usize::try_from(index)
-                .ok()
-                .and_then(|i| water.days.get_mut(i))
-            else {
+            let index = (date - lead_first).num_days();
+            let Some(slot) = usize::try_from(index).ok().and_then(|i| all.get_mut(i)) else {
                 continue;
             };
             if record_day.observed {
@@ -228,7 +261,15 @@ pub fn season_days(
                 slot.flood = record_day.is_flood(threshold_m);
             }
         }
-        out.push(water);
+        let days = all.split_off(LEAD_IN_DAYS);
+        out.push(SeasonWater {
+            lead_in: LeadIn {
+                days: all,
+                rmm: drivers.rmm_of(season.first_day() - chrono::Duration::days(1)),
+            },
+            season,
+            days,
+        });
     }
     out
 }

@@ -84,13 +84,13 @@ impl WaterParams {
                 value: self.threshold_m,
             });
         }
-        if let Some(b) = self.block_days {
-            if !(b >= 1.0 && b.is_finite()) {
-                return Err(WaterError::BadSetting {
-                    name: "block_days",
-                    value: b,
-                });
-            }
+        if let Some(b) = self.block_days
+            && !(b >= 1.0 && b.is_finite())
+        {
+            return Err(WaterError::BadSetting {
+                name: "block_days",
+                value: b,
+            });
         }
         Ok(WaterConfig(self.clone()))
     }
@@ -143,11 +143,13 @@ impl WaterConfig {
                             (true, Some(e)) => Some(PoolDay {
                                 value: y_day,
                                 enso: e,
+                                lead: 0.0,
                             }),
                             (true, None) => None,
                             (false, _) => Some(PoolDay {
                                 value: y_day,
                                 enso: 0.0,
+                                lead: 0.0,
                             }),
                         }
                     }
@@ -170,12 +172,36 @@ impl WaterConfig {
         for day in pool.iter_mut().flatten().flatten() {
             day.value -= enso_coefficient * day.enso;
         }
+        // The lead-in state of each training season, then its persistence into the season.
+        let mut slow = SlowTerm::new(sea_level, tide_mean);
+        let anomalies = training
+            .iter()
+            .map(|&s| {
+                lead_state(&seasons[s], &mut slow, enso_coefficient, columns.enso)
+                    .map(|l| l.anomaly)
+            })
+            .collect::<Result<Vec<_>, _>>()?;
+        let persistence = super::persistence::estimate(&pool, &anomalies);
+        if let Some(p) = persistence {
+            for (sequence, anomaly) in pool.iter_mut().zip(&anomalies) {
+                let Some(a) = anomaly else { continue };
+                let mut weight = 1.0;
+                for day in sequence.iter_mut() {
+                    if let Some(day) = day {
+                        day.lead = weight * (a - p.mean_anomaly);
+                        day.value -= p.coefficient * day.lead;
+                    }
+                    weight *= p.decay;
+                }
+            }
+        }
         let season_days = pool.iter().map(Vec::len).max().unwrap_or(0);
         let block_days = self.0.block_days.unwrap_or_else(|| {
             super::block::politis_white(&pool, season_days).unwrap_or(FALLBACK_BLOCK_DAYS)
         });
         let pool = Pool::new(pool, self.0.shift_days)?;
         Ok(WaterFit {
+            persistence,
             block_days,
             params: self.0.clone(),
             regression,
@@ -220,12 +246,51 @@ impl<'a> SlowTerm<'a> {
     }
 }
 
+/// The weather state before a season: the mean residual anomaly of the lead-in days (slow
+/// term and ENSO effect removed) and the MJO's RMM components on the day before.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub(crate) struct Lead {
+    pub(crate) anomaly: Option<f64>,
+    pub(crate) rmm: Option<(f64, f64)>,
+}
+
+/// Lead-in days with a residual needed for its mean anomaly to count.
+const MIN_LEAD_DAYS: usize = 5;
+
+fn lead_state(
+    season: &SeasonWater,
+    slow: &mut SlowTerm<'_>,
+    enso_coefficient: f64,
+    uses_enso: bool,
+) -> Result<Lead, WaterError> {
+    let mut values = Vec::new();
+    for day in &season.lead_in.days {
+        let (Some(r), enso) = (day.residual, day.enso) else {
+            continue;
+        };
+        let e = match (uses_enso, enso) {
+            (true, Some(e)) => e,
+            (true, None) => continue,
+            (false, _) => 0.0,
+        };
+        values.push(r - slow.at(day.year)? - enso_coefficient * e);
+    }
+    let anomaly =
+        (values.len() >= MIN_LEAD_DAYS).then(|| values.iter().sum::<f64>() / values.len() as f64);
+    Ok(Lead {
+        anomaly,
+        rmm: season.lead_in.rmm,
+    })
+}
+
 /// One pooled past day: its residual with the slow term and the fitted ENSO effect removed,
 /// and the ENSO value that was removed.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) struct PoolDay {
     pub(crate) value: f64,
     pub(crate) enso: f64,
+    /// `phi^d (A - mean A)`: the carried lead-in anomaly whose effect was removed.
+    pub(crate) lead: f64,
 }
 
 /// The past seasons' residual sequences, aligned by day of season.
@@ -269,6 +334,8 @@ pub struct WaterFit {
     pub(crate) params: WaterParams,
     /// The mean block length the simulation resamples with, days.
     pub block_days: f64,
+    /// The damped persistence of the lead-in anomaly, when past seasons show one.
+    pub persistence: Option<super::persistence::Persistence>,
     /// The residual regression on the drivers (block-robust errors).
     pub regression: Regression,
     pub(crate) pool: Pool,
@@ -294,5 +361,12 @@ impl WaterFit {
     /// The settings.
     pub fn params(&self) -> &WaterParams {
         &self.params
+    }
+
+    /// The lead-in state of `season` under this fit.
+    pub(crate) fn lead_of(&self, season: &SeasonWater) -> Result<Lead, WaterError> {
+        let mut slow = SlowTerm::new(&self.sea_level, self.tide_mean);
+        let b = self.enso_effect().map_or(0.0, |(b, _)| b);
+        lead_state(season, &mut slow, b, self.params.columns.enso)
     }
 }

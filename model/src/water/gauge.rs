@@ -142,7 +142,18 @@ impl GaugeWater {
                 season_name: self.season_name.clone(),
             });
         }
-        Ok(self.grid.future_days(&self.tide, season, drivers))
+        // A season the table holds (the one after the record, say) keeps its lead-in.
+        match self.index_of(season) {
+            Some(i) => {
+                let mut known = self.seasons[i].clone();
+                for day in &mut known.days {
+                    day.residual = None;
+                    day.flood = false;
+                }
+                Ok(known)
+            }
+            None => Ok(self.grid.future_days(&self.tide, season, drivers)),
+        }
     }
 
     /// Simulates `season` (counting every calendar day) under `fit`.
@@ -360,6 +371,11 @@ pub struct WaterReport {
     pub effects: Vec<EffectReport>,
     /// Whether no driver's effect is distinct from zero.
     pub drivers_add_nothing: bool,
+    /// The damped persistence of the weather just before the season, when past seasons show
+    /// one (else the lead-in is treated as unknown).
+    pub persistence: Option<super::Persistence>,
+    /// The mean block length of the resampling, days (Politis and White 2004).
+    pub block_days: f64,
     /// How the errors were computed, in words.
     pub errors: String,
     /// How the residual is defined, in words.
@@ -398,6 +414,8 @@ impl WaterReport {
             seasons: fit.pool_seasons(),
             residual_sd_m: fit.regression.residual_sd,
             drivers_add_nothing: !effects.iter().any(|e| e.distinct_from_zero),
+            persistence: fit.persistence,
+            block_days: fit.block_days,
             effects,
             errors: "least squares; standard errors clustered by season (any correlation \
                      between days of one season, none between seasons; Liang and Zeger 1986)"

@@ -20,16 +20,24 @@
 //! each coming day is known. Outlook and hindcast reach the simulation through one function,
 //! [`simulate::simulate`], so the skill quoted is the skill of what is served.
 
+// DEVELOPERS.md asks for range checks written so NaN fails them (`if !(x > 0.0)`).
+#![allow(
+    clippy::neg_cmp_op_on_partial_ord,
+    reason = "range checks are written so that NaN fails them"
+)]
+
 pub mod block;
 pub mod days;
 pub mod engine;
 pub mod gauge;
+pub mod persistence;
 pub mod regression;
 pub mod simulate;
 
 pub use days::{DayDrivers, DayGrid, SeasonWater, WaterDay, season_days};
 pub use engine::{Columns, WaterConfig, WaterFit, WaterParams};
 pub use gauge::{GaugeWater, WaterReport, enso_at_issue};
+pub use persistence::Persistence;
 pub use regression::{Coefficient, Covariance, Regression, RegressionError};
 pub use simulate::{DEFAULT_SIMULATIONS, SeasonPlan, Simulated, simulate};
 

@@ -300,7 +300,7 @@ mod tests {
         let xs: Vec<f64> = (0..20).map(f64::from).collect();
         let x: Vec<f64> = xs.iter().flat_map(|&v| [1.0, v]).collect();
         let y: Vec<f64> = xs.iter().map(|&v| 2.0 + 3.0 * v).collect();
-        let r = check(&x, &y, &vec![0; 20], Covariance::Cluster);
+        let r = check(&x, &y, &[0; 20], Covariance::Cluster);
         assert!((r.coefficients[0].estimate - 2.0).abs() < 1e-10);
         assert!((r.coefficients[1].estimate - 3.0).abs() < 1e-10);
         assert!(r.residual_sd < 1e-9);

@@ -16,6 +16,13 @@
 //!   a random past season and a random shift of up to `shift_days` along the season; a missing
 //!   past day is replaced by a random present day within the shift window.
 //!
+//!
+//! **Persistence.** The weather a season inherits is known when its outlook is issued: the
+//! mean residual anomaly `A` of the days just before it (a wind regime, a surge). Where past
+//! seasons show that it persists ([`super::persistence`]), day `d` of the season carries
+//! `c phi^d (A - mean A)` (damped persistence, common practice), with `c` drawn from its
+//! estimated law; the pooled past days have their own such term removed, as with ENSO.
+//!
 //! A day floods when its level reaches the threshold; the count over the counted days is one
 //! draw of the season's flood days. Randomness comes from the caller's seeded generator.
 
@@ -114,11 +121,28 @@ pub fn simulate(
     let mut sequence = vec![
         PoolDay {
             value: 0.0,
-            enso: 0.0
+            enso: 0.0,
+            lead: 0.0,
         };
         days.len()
     ];
     let continue_block = 1.0 - 1.0 / fit.block_days;
+    let persistence = fit.persistence;
+    let target_lead = match (persistence, fit.lead_of(plan.season)?.anomaly) {
+        (Some(p), Some(a)) => Some((p, a - p.mean_anomaly)),
+        _ => None,
+    };
+    let persistence_law = match persistence {
+        Some(p) => Some(
+            Normal::new(p.coefficient, p.std_error.max(0.0)).map_err(|_| {
+                WaterError::BadSetting {
+                    name: "persistence std_error",
+                    value: p.std_error,
+                }
+            })?,
+        ),
+        None => None,
+    };
     for s in 0..simulations {
         let z = slow_draw.sample(rng);
         let (shift_enso, b_s, b_hat) = match &enso_law {
@@ -129,9 +153,23 @@ pub fn simulate(
             None => (0.0, 0.0, 0.0),
         };
         resample_sequence(fit, &mut sequence, continue_block, rng);
+        let (c_hat, c_s) = match (&persistence_law, persistence) {
+            (Some(law), Some(p)) => (p.coefficient, law.sample(rng)),
+            _ => (0.0, 0.0),
+        };
         let mut n = 0;
         for (d, past) in sequence.iter().enumerate() {
-            let level = base[d] + z + shift_enso + past.value + (b_hat - b_s) * past.enso;
+            let carried = match target_lead {
+                Some((p, anomaly)) => c_s * p.decay.powi(d as i32) * anomaly,
+                None => 0.0,
+            };
+            let level = base[d]
+                + z
+                + shift_enso
+                + carried
+                + past.value
+                + (b_hat - b_s) * past.enso
+                + (c_hat - c_s) * past.lead;
             if level >= threshold && counted[d] {
                 n += 1;
                 flooded[d] += 1;
@@ -190,10 +228,11 @@ impl SlowDraw {
         if !(std_error > 0.0) {
             return SlowDraw::None;
         }
-        if dof.is_finite() && dof > 2.0 {
-            if let Ok(t) = StudentT::new(dof) {
-                return SlowDraw::Student(std_error, t);
-            }
+        if dof.is_finite()
+            && dof > 2.0
+            && let Ok(t) = StudentT::new(dof)
+        {
+            return SlowDraw::Student(std_error, t);
         }
         SlowDraw::Normal(std_error)
     }
