@@ -58,8 +58,8 @@ fn every_demo_gauge_gets_a_hindcast_with_intervals_and_a_verdict() {
                 }
                 assert_eq!(
                     scheme.models.len(),
-                    3,
-                    "{what}: driver model and both baselines"
+                    4,
+                    "{what}: driver model, both baselines and the water-level engine"
                 );
                 for m in &scheme.models {
                     assert!(m.crps > 0.0 && m.rps > 0.0 && m.log_score > 0.0, "{what}");
@@ -69,8 +69,9 @@ fn every_demo_gauge_gets_a_hindcast_with_intervals_and_a_verdict() {
                         assert_eq!(counted, scheme.cases.len(), "{what}: every case in a bin");
                     }
                 }
-                // Drivers and trend against climatology, drivers against trend.
-                assert_eq!(scheme.skill.len(), 3, "{what}");
+                // Drivers, trend and water against climatology; drivers and water against
+                // the trend.
+                assert_eq!(scheme.skill.len(), 5, "{what}");
                 for skill in &scheme.skill {
                     assert_eq!(skill.resamples, 1000);
                     // crpss, rpss, one bss per k, log_skill, mae_skill.
@@ -92,6 +93,18 @@ fn every_demo_gauge_gets_a_hindcast_with_intervals_and_a_verdict() {
             };
             assert!(v.sentence.contains(words), "{what}: {}", v.sentence);
             assert!(season.verdict(ModelKind::TrendOnly).is_some(), "{what}");
+            // Both engines side by side: the water engine's verdicts and mean CRPS too.
+            assert!(
+                season
+                    .verdict_of(ModelKind::Water, ModelKind::Climatology)
+                    .is_some(),
+                "{what}"
+            );
+            assert_eq!(season.engines.len(), 2, "{what}");
+            for engine in &season.engines {
+                assert_eq!(engine.crps_by_scheme.len(), 2, "{what}");
+                assert!(engine.mean_crps > 0.0, "{what}");
+            }
         }
         let json = serde_json::to_value(&report).unwrap();
         let scheme = &json["seasons"][0]["schemes"][0];

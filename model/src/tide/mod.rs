@@ -18,7 +18,7 @@ pub use constituents::{Constituent, STANDARD};
 pub use datums::{Datums, DatumsConfig, DatumsParams, Epoch, HighLow};
 
 pub use predict::{ConstituentValue, FitSummary, FittedConstituent, TideModel};
-pub use risk::{DailyHigh, ResidualClimatology, RiskCalendar, RiskConfig, RiskDay, RiskParams};
+pub use risk::{DailyHigh, RiskConfig, RiskParams};
 pub use threshold::{DerivedThreshold, derived_minor_threshold};
 
 /// Errors of tidal analysis, prediction and datums.

@@ -1,17 +1,13 @@
-//! Tide-driven risk days for a season, and the tidal driver of the count model.
-//!
-//! The astronomical tide is known in advance: each local-standard-time day's predicted higher
-//! high water plus the season's projected mean sea level says how close the tide alone comes
-//! to the flood threshold. The weather's share comes from the record: on past days of the same
-//! season, the daily high-water residual (observed daily maximum minus predicted daily
-//! maximum, mean level and trend included) forms an empirical distribution, and a day's flood
-//! probability is the share of past residuals that would lift its tide to the threshold.
+//! Each local-standard-time day's predicted higher high water, and the tidal driver of the
+//! count model: the days of a season when the tide alone comes within a margin of the flood
+//! threshold. The astronomical tide is known in advance, so the driver is known before the
+//! season. (The day calendar of flood chances is the water-level engine's, `crate::water`.)
 
-use chrono::{Datelike, NaiveDate};
+use chrono::NaiveDate;
 
 use super::predict::TideModel;
-use super::{TideError, check_series};
-use crate::season::{Season, SeasonSpec};
+use super::TideError;
+use crate::season::Season;
 
 /// Step of the fine prediction that locates each day's higher high water, seconds.
 const FINE_STEP_SECONDS: i64 = 360;
@@ -80,87 +76,6 @@ pub struct DailyHigh {
     pub tide: f64,
 }
 
-/// Past daily high-water residuals of one season's months.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ResidualClimatology {
-    sorted: Vec<f64>,
-}
-
-impl ResidualClimatology {
-    /// Builds the distribution from given residuals (NaN dropped).
-    pub fn from_residuals(residuals: &[f64]) -> Self {
-        let mut sorted: Vec<f64> = residuals
-            .iter()
-            .copied()
-            .filter(|r| r.is_finite())
-            .collect();
-        sorted.sort_by(f64::total_cmp);
-        Self { sorted }
-    }
-
-    /// Number of past days.
-    pub fn len(&self) -> usize {
-        self.sorted.len()
-    }
-
-    /// True when no past day is held.
-    pub fn is_empty(&self) -> bool {
-        self.sorted.is_empty()
-    }
-
-    /// Share of past residuals at or above `x`; NaN when empty.
-    pub fn exceedance(&self, x: f64) -> f64 {
-        if self.sorted.is_empty() {
-            return f64::NAN;
-        }
-        let below = self.sorted.partition_point(|&r| r < x);
-        (self.sorted.len() - below) as f64 / self.sorted.len() as f64
-    }
-
-    /// The residuals, ascending.
-    pub fn residuals(&self) -> &[f64] {
-        &self.sorted
-    }
-}
-
-/// One day of a risk calendar.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct RiskDay {
-    /// The local-standard-time date.
-    pub date: NaiveDate,
-    /// Time of the predicted higher high water, unix seconds.
-    pub high_water_time: i64,
-    /// Predicted higher high water: astronomical tide plus projected mean sea level.
-    pub predicted_high: f64,
-    /// The tide alone comes within the margin of the threshold.
-    pub tide_risk: bool,
-    /// Probability of a flood day from the past residuals of the same season.
-    pub flood_probability: f64,
-}
-
-/// Tide-driven risk days of one season.
-#[derive(Debug, Clone, PartialEq)]
-pub struct RiskCalendar {
-    /// Season label, e.g. `2026-DJF`.
-    pub season: String,
-    /// Flood threshold.
-    pub threshold: f64,
-    /// Margin below the threshold for tide risk days.
-    pub margin: f64,
-    /// Projected mean sea level added to the tide.
-    pub mean_sea_level: f64,
-    /// Past days behind the residual distribution.
-    pub residual_days: usize,
-    /// The days, in order.
-    pub days: Vec<RiskDay>,
-    /// Days when the tide alone reaches `threshold - margin`.
-    pub tide_risk_days: u32,
-    /// Sum of the days' flood probabilities: the expected number of flood days.
-    pub expected_flood_days: f64,
-    /// Plain cautions; never empty.
-    pub cautions: Vec<String>,
-}
-
 fn epoch_day(date: NaiveDate) -> i64 {
     let epoch = NaiveDate::from_ymd_opt(1970, 1, 1).expect("1970-01-01 is a valid date");
     date.signed_duration_since(epoch).num_days()
@@ -224,112 +139,12 @@ impl RiskConfig {
             .filter(|d| d.tide + mean_sea_level >= level)
             .count() as u32
     }
-
-    /// Past daily high-water residuals on days in the months of `spec` (any year): observed
-    /// daily maximum minus the predicted maximum at the same readings (mean and trend
-    /// included), for local days with enough readings.
-    pub fn residual_climatology(
-        &self,
-        model: &TideModel,
-        times: &[i64],
-        levels: &[f64],
-        spec: &SeasonSpec,
-    ) -> Result<ResidualClimatology, TideError> {
-        check_series(times, levels)?;
-        let months: Vec<u32> = spec.month_sequence().map(|(_, m)| m).collect();
-        let present: Vec<usize> = (0..times.len())
-            .filter(|&i| levels[i].is_finite())
-            .collect();
-        let present_times: Vec<i64> = present.iter().map(|&i| times[i]).collect();
-        let predicted = model.predict_at(&present_times);
-        let step = present_times
-            .windows(2)
-            .map(|w| w[1] - w[0])
-            .min()
-            .unwrap_or(3600)
-            .max(1);
-        let expected = (DAY_SECONDS / step) as f64;
-        let offset = i64::from(self.0.utc_offset_seconds);
-        let mut residuals = Vec::new();
-        let mut k = 0;
-        while k < present.len() {
-            let day = (present_times[k] + offset).div_euclid(DAY_SECONDS);
-            let (mut obs, mut pred, mut n) = (f64::NEG_INFINITY, f64::NEG_INFINITY, 0usize);
-            while k < present.len() && (present_times[k] + offset).div_euclid(DAY_SECONDS) == day {
-                obs = obs.max(levels[present[k]]);
-                pred = pred.max(predicted[k]);
-                n += 1;
-                k += 1;
-            }
-            let date = date_of_epoch_day(day);
-            if months.contains(&date.month()) && n as f64 >= self.0.min_day_completeness * expected
-            {
-                residuals.push(obs - pred);
-            }
-        }
-        Ok(ResidualClimatology::from_residuals(&residuals))
-    }
-
-    /// The risk calendar of `season` with the tide, the projected `mean_sea_level` and the
-    /// residual distribution of the season's months.
-    pub fn calendar(
-        &self,
-        model: &TideModel,
-        season: &Season,
-        mean_sea_level: f64,
-        residuals: &ResidualClimatology,
-    ) -> Result<RiskCalendar, TideError> {
-        if !mean_sea_level.is_finite() {
-            return Err(TideError::BadParameter {
-                name: "mean_sea_level",
-                value: mean_sea_level,
-                expected: "a finite level",
-            });
-        }
-        if residuals.is_empty() {
-            return Err(TideError::TooFewSamples {
-                samples: 0,
-                parameters: 1,
-            });
-        }
-        let (threshold, margin) = (self.0.threshold, self.0.margin);
-        let days: Vec<RiskDay> = self
-            .daily_highs(model, season.first_day(), season.calendar_days())
-            .into_iter()
-            .map(|d| {
-                let predicted_high = d.tide + mean_sea_level;
-                RiskDay {
-                    date: d.date,
-                    high_water_time: d.time,
-                    predicted_high,
-                    tide_risk: predicted_high >= threshold - margin,
-                    flood_probability: residuals.exceedance(threshold - predicted_high),
-                }
-            })
-            .collect();
-        Ok(RiskCalendar {
-            season: season.label(),
-            threshold,
-            margin,
-            mean_sea_level,
-            residual_days: residuals.len(),
-            tide_risk_days: days.iter().filter(|d| d.tide_risk).count() as u32,
-            expected_flood_days: days.iter().map(|d| d.flood_probability).sum(),
-            days,
-            cautions: vec![
-                "These are seasonal probabilities from the predicted tide and past weather, \
-                 not a warning or a forecast of any one day."
-                    .to_owned(),
-                "Follow official forecasts and local emergency managers for flood warnings."
-                    .to_owned(),
-            ],
-        })
-    }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::season::SeasonSpec;
     use crate::tide::predict::ConstituentValue;
 
     fn model(values: &[(&str, f64, f64)]) -> TideModel {
@@ -407,50 +222,5 @@ mod tests {
         let sn = model(&[("M2", 1.0, 0.0), ("S2", 0.4, 0.0)]);
         let n = config(1.2, 0.0).tidal_driver(&sn, &djf, 0.0);
         assert!(n > 10 && n < 80, "{n}");
-    }
-
-    #[test]
-    fn flood_probability_is_the_share_of_residuals_lifting_the_tide() {
-        let m = model(&[("M2", 1.0, 0.0)]);
-        let djf = season("2026-DJF");
-        let residuals = ResidualClimatology::from_residuals(&[-0.2, -0.1, 0.0, 0.1, 0.2, f64::NAN]);
-        assert_eq!(residuals.len(), 5);
-        // Threshold 0.1 m above each day's ~1 m high: residuals 0.1 and 0.2 reach it on days
-        // whose high exceeds 1.0, only 0.2 on days below; f(M2) in 2026-27 is ~0.97 -> 1/5.
-        let cal = config(1.1, 0.0)
-            .calendar(&m, &djf, 0.0, &residuals)
-            .expect("calendar");
-        assert_eq!(cal.days.len(), 90);
-        for d in &cal.days {
-            let need = 1.1 - d.predicted_high;
-            let expected = [-0.2, -0.1, 0.0, 0.1, 0.2]
-                .iter()
-                .filter(|&&r| r >= need)
-                .count() as f64
-                / 5.0;
-            assert!((d.flood_probability - expected).abs() < 1e-12);
-        }
-        assert!(cal.expected_flood_days > 0.0 && cal.expected_flood_days < 90.0);
-        assert!(!cal.cautions.is_empty());
-    }
-
-    #[test]
-    fn residual_climatology_recovers_a_constant_surge_in_season_months() {
-        let m = model(&[("M2", 1.0, 0.0), ("K1", 0.3, 0.0)]);
-        let start = 1_798_761_600; // 2027-01-01T00:00Z
-        let times: Vec<i64> = (0..24 * 120).map(|k| start + k * 3600).collect();
-        let mut levels = m.predict_at(&times);
-        for (t, l) in times.iter().zip(levels.iter_mut()) {
-            // +0.25 m in January and February (local days), nothing after.
-            if *t < 1_803_859_200 + 5 * 3600 {
-                *l += 0.25;
-            }
-        }
-        let spec = SeasonSpec::meteorological().remove(0);
-        let clim = config(1.0, 0.1)
-            .residual_climatology(&m, &times, &levels, &spec)
-            .expect("climatology");
-        assert!(clim.len() >= 57 && clim.len() <= 59, "{}", clim.len());
-        assert!(clim.residuals().iter().all(|r| (r - 0.25).abs() < 1e-9));
     }
 }

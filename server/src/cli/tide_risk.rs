@@ -1,14 +1,13 @@
-//! `tidetally tide risk`: the days of a coming season when the astronomical tide alone brings
-//! the water near the flood threshold, and each day's chance of a flood day from the
-//! non-tidal residuals seen on past days of the same season.
+//! `tidetally tide risk`: a view of the water-level engine's day calendar for a coming
+//! season: each local day's predicted high water (tide plus projected mean sea level), whether
+//! the tide alone comes within `--margin` of the flood threshold, and the day's chance of a
+//! flood day from the engine's simulation (the same one the outlook's calendar comes from).
 
 use anyhow::Context;
-use chrono::{DateTime, NaiveDate};
 use serde::Serialize;
-use tidetally_model::fit::{self, FilesNeeded, GaugeSources};
-use tidetally_model::gauge::GaugeConfig;
-use tidetally_model::season::{Season, season_of};
-use tidetally_model::tide::{AnalysisParams, RiskCalendar, RiskParams};
+use tidetally_model::outlook::{IssueOptions, issue::water_forecast};
+use tidetally_model::season::Season;
+use tidetally_model::water::GaugeWater;
 
 use super::{TideRiskArgs, print_json};
 
@@ -30,7 +29,6 @@ struct RiskJson {
 #[derive(Debug, Serialize)]
 struct RiskDayJson {
     date: String,
-    high_water_time: String,
     predicted_high_m: f64,
     tide_risk: bool,
     flood_probability: f64,
@@ -41,92 +39,65 @@ pub(super) fn run(args: TideRiskArgs) -> anyhow::Result<()> {
 }
 
 fn risk_output(args: &TideRiskArgs) -> anyhow::Result<RiskJson> {
-    let sources = GaugeSources::read(&args.gauge, FilesNeeded::Levels)?;
-    let fit::RecordedGauge {
-        config,
-        levels: series,
-        ..
-    } = fit::record_gauge(&sources)?;
-    let last = *series
-        .times
-        .last()
-        .with_context(|| format!("{}: the level record has no readings", args.gauge.display()))?;
+    anyhow::ensure!(
+        args.margin >= 0.0 && args.margin.is_finite(),
+        "--margin must be a finite number of metres >= 0, got {}",
+        args.margin
+    );
+    let prepared = super::prepare_gauge(&args.gauge)?;
+    let config = &prepared.config;
     let season = match &args.season {
         Some(label) => Season::parse(label, &config.seasons.specs)?,
-        None => season_after(last, &config)?,
+        None => prepared.default_target().with_context(|| {
+            format!(
+                "{}: the level record has no observed day",
+                args.gauge.display()
+            )
+        })?,
     };
-    let model = AnalysisParams {
-        trend: true,
-        ..Default::default()
-    }
-    .check()?
-    .fit(&series.times, &series.levels_m)?;
-    let risk = RiskParams {
-        threshold: config.flood_threshold_m,
-        margin: args.margin,
-        utc_offset_seconds: config.utc_offset.local_minus_utc(),
-        min_day_completeness: config.levels.min_day_completeness,
-    }
-    .check()?;
-    let residuals =
-        risk.residual_climatology(&model, &series.times, &series.levels_m, season.spec())?;
-    let middle = season.first_day() + chrono::Duration::days(i64::from(season.calendar_days() / 2));
-    let middle_time = middle
-        .and_hms_opt(12, 0, 0)
-        .map_or(last, |t| t.and_utc().timestamp());
-    let calendar = risk.calendar(
-        &model,
-        &season,
-        model.mean_level_at(middle_time),
-        &residuals,
-    )?;
-    Ok(to_json(&config, &calendar))
-}
-
-/// The first season that starts after the last reading's local day.
-fn season_after(last: i64, config: &GaugeConfig) -> anyhow::Result<Season> {
-    let local = DateTime::from_timestamp(last, 0)
-        .context("the last reading's time is out of range")?
-        .with_timezone(&config.utc_offset)
-        .date_naive();
-    let next_day: NaiveDate = local
-        .succ_opt()
-        .context("the record ends at the end of time")?;
-    let containing = season_of(next_day, &config.seasons.specs)
-        .context("no defined season follows the record")?;
-    if containing.first_day() == next_day {
-        return Ok(containing);
-    }
-    season_of(containing.end_exclusive(), &config.seasons.specs)
-        .context("no defined season follows the record")
-}
-
-fn to_json(config: &GaugeConfig, calendar: &RiskCalendar) -> RiskJson {
-    RiskJson {
+    let water = GaugeWater::for_gauge(&prepared, season.spec().name())
+        .with_context(|| format!("the water-level engine of {}", args.gauge.display()))?;
+    let forecast = water_forecast(&prepared, &water, &season, &IssueOptions::default())
+        .with_context(|| format!("the water-level engine's forecast of {season}"))?;
+    let threshold = config.flood_threshold_m;
+    let level = |d: f64| water.sea_level.level_at(d).map(|v| v.value).ok();
+    let middle = forecast
+        .season
+        .days
+        .get(forecast.season.days.len() / 2)
+        .and_then(|d| level(d.year))
+        .unwrap_or(water.tide.mean);
+    let days: Vec<RiskDayJson> = forecast
+        .season
+        .days
+        .iter()
+        .zip(&forecast.simulated.day_level)
+        .zip(&forecast.simulated.day_chance)
+        .map(|((day, &predicted_high_m), &chance)| RiskDayJson {
+            date: day.date.to_string(),
+            predicted_high_m,
+            tide_risk: predicted_high_m >= threshold - args.margin,
+            flood_probability: chance,
+        })
+        .collect();
+    Ok(RiskJson {
         gauge_id: config.id.clone(),
-        season: calendar.season.clone(),
+        season: season.label(),
         datum: config.datum.clone(),
-        threshold_m: calendar.threshold,
-        margin_m: calendar.margin,
-        mean_sea_level_m: calendar.mean_sea_level,
-        residual_days: calendar.residual_days,
-        tide_risk_days: calendar.tide_risk_days,
-        expected_flood_days: calendar.expected_flood_days,
-        days: calendar
-            .days
-            .iter()
-            .map(|d| RiskDayJson {
-                date: d.date.to_string(),
-                high_water_time: DateTime::from_timestamp(d.high_water_time, 0)
-                    .map(|t| t.to_rfc3339())
-                    .unwrap_or_default(),
-                predicted_high_m: d.predicted_high,
-                tide_risk: d.tide_risk,
-                flood_probability: d.flood_probability,
-            })
-            .collect(),
-        cautions: calendar.cautions.clone(),
-    }
+        threshold_m: threshold,
+        margin_m: args.margin,
+        mean_sea_level_m: middle,
+        residual_days: forecast.report.days,
+        tide_risk_days: days.iter().filter(|d| d.tide_risk).count() as u32,
+        expected_flood_days: days.iter().map(|d| d.flood_probability).sum(),
+        days,
+        cautions: vec![
+            "Each day's chance is a seasonal estimate from the predicted tide, the sea-level \
+             trend and past weather, not a warning or a forecast of that day."
+                .to_owned(),
+            "Follow official forecasts and local emergency managers for flood warnings.".to_owned(),
+        ],
+    })
 }
 
 #[cfg(test)]
