@@ -357,7 +357,7 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     call(
         addr,
         "PUT",
-        &format!("/api/v1/drivers/wind/{COPY}"),
+        &format!("/api/v1/drivers/wind/{DEMO_GAUGE}-wind"),
         wind,
         200,
     )
@@ -491,15 +491,15 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
     .await;
     for (path, file) in [
         (
-            "/api/v1/drivers/enso".to_owned(),
+            "/api/v1/drivers/enso/enso-monthly".to_owned(),
             "../drivers/enso-monthly.csv".to_owned(),
         ),
         (
-            "/api/v1/drivers/rmm".to_owned(),
+            "/api/v1/drivers/rmm/rmm-daily".to_owned(),
             "../drivers/rmm-daily.csv".to_owned(),
         ),
         (
-            format!("/api/v1/drivers/wind/{id}"),
+            format!("/api/v1/drivers/wind/{DEMO_GAUGE}-wind"),
             format!("{DEMO_GAUGE}-wind.csv"),
         ),
     ] {
@@ -527,7 +527,14 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
     .await;
     let forecast = r#"{"season": "2025-DJF", "issued": "2025-11-15",
         "probabilities": {"la_nina": 0.5, "neutral": 0.4, "el_nino": 0.1}}"#;
-    call(addr, "PUT", "/api/v1/forecasts/enso", forecast.into(), 200).await;
+    call(
+        addr,
+        "PUT",
+        "/api/v1/forecasts/enso/enso-forecast-2026-DJF",
+        forecast.into(),
+        200,
+    )
+    .await;
     call(
         addr,
         "POST",
@@ -546,7 +553,7 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
     .await;
     assert_eq!(o["season"], "2025-DJF");
     check_outlook(&o);
-    let issued_path = format!("/api/v1/outlooks/issued?gauge={id}");
+    let issued_path = format!("/api/v1/outlooks/issued?gauge={id}&season=2025-DJF");
     let issued = call(addr, "GET", &issued_path, vec![], 200).await;
     assert!(
         issued["issued"][0]["verification"].is_null(),
@@ -554,12 +561,21 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
         issued["issued"][0]["verification"]
     );
 
-    // The rest of the record arrives (no refit): the issued outlook is scored against it.
+    // The rest of the record arrives, merged into the stored one; uploads change nothing
+    // served until a refit, after which the outlook issued earlier is scored against it.
     call(
         addr,
         "PUT",
         &format!("/api/v1/gauges/{id}/levels"),
         full,
+        200,
+    )
+    .await;
+    call(
+        addr,
+        "POST",
+        &format!("/api/v1/gauges/{id}/refit"),
+        vec![],
         200,
     )
     .await;
