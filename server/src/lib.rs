@@ -11,6 +11,7 @@ pub mod catalog;
 pub mod cautions;
 pub mod cli;
 pub mod config;
+pub mod connections;
 mod cors;
 pub mod error;
 pub mod merge;
@@ -46,13 +47,18 @@ pub async fn run(
     serve_router(listener, app(state), shutdown).await
 }
 
-/// Serves any router built by [`routes::router`] on `listener` until `shutdown` resolves.
+/// Serves any router built by [`routes::router`] on `listener` with the default connection
+/// limits until `shutdown` resolves.
 pub async fn serve_router(
     listener: tokio::net::TcpListener,
     router: axum::Router,
     shutdown: impl Future<Output = ()> + Send + 'static,
 ) -> std::io::Result<()> {
-    axum::serve(listener, router)
-        .with_graceful_shutdown(shutdown)
-        .await
+    connections::serve(
+        listener,
+        router,
+        connections::ConnLimits::default(),
+        shutdown,
+    )
+    .await
 }
