@@ -4,68 +4,13 @@
 
 mod support;
 
-use std::path::{Path, PathBuf};
-use std::sync::Arc;
 use std::time::Duration;
 
+use support::demo::{demo_folder, seeded_state};
 use support::socket::{Reply, call, serve};
 use support::*;
-use tidetally_server::auth::Token;
+use tidetally_server::AppState;
 use tidetally_server::store::Store;
-use tidetally_server::{AppState, state};
-
-fn demo(path: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../demo-data")
-        .join(path)
-}
-
-/// A data folder with one demo gauge (its tidal driver left out to keep the fit quick) and
-/// the demo's driver files, laid out as in `demo-data/`.
-fn demo_folder(name: &str) -> PathBuf {
-    let dir = temp_dir(name);
-    std::fs::create_dir_all(dir.join("gauges")).unwrap();
-    std::fs::create_dir_all(dir.join("drivers")).unwrap();
-    let toml = std::fs::read_to_string(demo("gauges/port-tamsin.toml"))
-        .unwrap()
-        .replace(
-            "predictors = [\"enso\", \"mjo\", \"wind\", \"sea_level\", \"tide\"]",
-            "predictors = [\"enso\", \"mjo\", \"sea_level\"]",
-        );
-    assert!(!toml.contains("\"tide\""), "the demo TOML changed shape");
-    std::fs::write(dir.join("gauges/port-tamsin.toml"), toml).unwrap();
-    for file in [
-        "gauges/port-tamsin-levels.csv.gz",
-        "gauges/port-tamsin-wind.csv",
-        "drivers/enso-monthly.csv",
-        "drivers/rmm-daily.csv",
-        "drivers/enso-forecast-2026-DJF.json",
-    ] {
-        std::fs::copy(demo(file), dir.join(file)).unwrap();
-    }
-    dir
-}
-
-/// A loaded state over a store seeded from `data`, writes enabled.
-async fn seeded_state(data: &Path) -> Arc<AppState> {
-    let store = Store::open_in_memory().unwrap();
-    let gauges = data.join("gauges");
-    store
-        .call_blocking(|c| Ok(state::seed_from_dir(c, &gauges)))
-        .unwrap()
-        .unwrap();
-    let state = AppState::new(
-        store,
-        Some(Token::new(TOKEN.into())),
-        Duration::from_secs(60),
-    );
-    let loader = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::load_catalog(&loader))
-        .await
-        .unwrap()
-        .unwrap();
-    state
-}
 
 fn ok(reply: &Reply, what: &str) {
     assert_eq!(reply.status, 200, "{what}: {} {}", reply.head, reply.body);

@@ -364,3 +364,77 @@ pub fn hourly_levels(days: u32) -> String {
     }
     csv
 }
+
+/// The demo coastline for socket tests.
+pub mod demo {
+    use std::path::{Path, PathBuf};
+    use std::sync::Arc;
+    use std::time::Duration;
+
+    use tidetally_server::auth::Token;
+    use tidetally_server::store::Store;
+    use tidetally_server::{AppState, state};
+
+    use super::{TOKEN, temp_dir};
+
+    pub fn demo(path: &str) -> PathBuf {
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../demo-data")
+            .join(path)
+    }
+
+    /// A data folder with one demo gauge (its tidal driver left out to keep the fit quick) and
+    /// the demo's driver files, laid out as in `demo-data/`.
+    pub fn demo_folder(name: &str) -> PathBuf {
+        let dir = temp_dir(name);
+        std::fs::create_dir_all(dir.join("gauges")).expect("demo data");
+        std::fs::create_dir_all(dir.join("drivers")).expect("demo data");
+        let toml = std::fs::read_to_string(demo("gauges/port-tamsin.toml"))
+            .expect("demo data")
+            .replace(
+                "predictors = [\"enso\", \"mjo\", \"wind\", \"sea_level\", \"tide\"]",
+                "predictors = [\"enso\", \"mjo\", \"sea_level\"]",
+            );
+        assert!(!toml.contains("\"tide\""), "the demo TOML changed shape");
+        std::fs::write(dir.join("gauges/port-tamsin.toml"), toml).expect("demo data");
+        for file in [
+            "gauges/port-tamsin-levels.csv.gz",
+            "gauges/port-tamsin-wind.csv",
+            "drivers/enso-monthly.csv",
+            "drivers/rmm-daily.csv",
+            "drivers/enso-forecast-2026-DJF.json",
+        ] {
+            std::fs::copy(demo(file), dir.join(file)).expect("demo data");
+        }
+        dir
+    }
+
+    /// A loaded state over a store seeded from `data`, writes enabled.
+    pub async fn seeded_state_with(
+        data: &Path,
+        configure: impl FnOnce(AppState) -> AppState,
+    ) -> Arc<AppState> {
+        let store = Store::open_in_memory().expect("in-memory store");
+        let gauges = data.join("gauges");
+        store
+            .call_blocking(|c| Ok(state::seed_from_dir(c, &gauges)))
+            .expect("demo data")
+            .expect("demo data");
+        let state = Arc::new(configure(AppState::unshared(
+            store,
+            Some(Token::new(TOKEN.into())),
+            Duration::from_secs(60),
+        )));
+        let loader = Arc::clone(&state);
+        tokio::task::spawn_blocking(move || state::load_catalog(&loader))
+            .await
+            .expect("demo data")
+            .expect("demo data");
+        state
+    }
+
+    /// [`seeded_state_with`] with the default pools and no test hook.
+    pub async fn seeded_state(data: &Path) -> Arc<AppState> {
+        seeded_state_with(data, |s| s).await
+    }
+}
