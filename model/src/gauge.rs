@@ -24,10 +24,12 @@ use crate::season::{
 #[derive(Debug, thiserror::Error)]
 pub enum GaugeError {
     /// A file could not be opened or read.
-    #[error("{}: {error}", path.display())]
+    #[error("{}{}: cannot open: {error}", path.display(), key.map(|k| format!(" (TOML key {k})")).unwrap_or_default())]
     Io {
         /// The file.
         path: PathBuf,
+        /// The gauge TOML key naming it (`None` for the TOML itself).
+        key: Option<&'static str>,
         /// The I/O error.
         error: std::io::Error,
     },
@@ -261,6 +263,7 @@ impl GaugeConfig {
     /// Reads and validates a gauge TOML file; data paths resolve against its folder.
     pub fn load(path: &Path) -> Result<Self, GaugeError> {
         let text = std::fs::read_to_string(path).map_err(|error| GaugeError::Io {
+            key: None,
             path: path.to_owned(),
             error,
         })?;
@@ -685,6 +688,7 @@ pub struct GaugeRecord {
 fn open_levels(config: &GaugeConfig) -> Result<(BufReader<File>, String), GaugeError> {
     let path = &config.levels.file;
     let file = File::open(path).map_err(|error| GaugeError::Io {
+        key: Some("levels.file"),
         path: path.clone(),
         error,
     })?;

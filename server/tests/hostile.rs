@@ -417,3 +417,56 @@ async fn echoed_values_are_cut_short() {
     assert_eq!(r.status, 431, "{}", r.head);
     assert_eq!(r.json()["type"], "/problems/headers-too-large");
 }
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_refit_missing_a_driver_series_names_it_and_its_toml_key() {
+    let data = demo_folder("no-wind");
+    let state = seeded_state(&data).await;
+    let (addr, _stop, _server) = serve(state).await;
+    let toml = std::fs::read_to_string(data.join("gauges/port-tamsin.toml"))
+        .unwrap()
+        .replace("id = \"port-tamsin\"", "id = \"no-wind\"")
+        .replace("port-tamsin-wind.csv", "nowhere-wind.csv")
+        .replace(
+            "predictors = [\"enso\", \"mjo\", \"sea_level\"]",
+            "predictors = [\"enso\", \"wind\", \"sea_level\"]",
+        );
+    let r = call(
+        addr,
+        "PUT",
+        "/api/v1/gauges/no-wind".into(),
+        Some(TOKEN),
+        toml.into_bytes(),
+    )
+    .await;
+    ok(&r, "gauge");
+    let levels = std::fs::read(data.join("gauges/port-tamsin-levels.csv.gz")).unwrap();
+    let r = call(
+        addr,
+        "PUT",
+        "/api/v1/gauges/no-wind/levels".into(),
+        Some(TOKEN),
+        levels,
+    )
+    .await;
+    ok(&r, "levels");
+    let r = call(
+        addr,
+        "POST",
+        "/api/v1/gauges/no-wind/refit".into(),
+        Some(TOKEN),
+        vec![],
+    )
+    .await;
+    assert_eq!(r.status, 422, "{}", r.body);
+    let detail = r.json()["detail"].as_str().unwrap().to_owned();
+    for part in [
+        "wind",
+        "nowhere-wind",
+        "drivers.wind",
+        "PUT /api/v1/drivers/wind/nowhere-wind",
+    ] {
+        assert!(detail.contains(part), "{part}: {detail}");
+    }
+    let _ = std::fs::remove_dir_all(&data);
+}

@@ -32,13 +32,15 @@ pub enum PrepareError {
     /// The gauge's level record.
     #[error(transparent)]
     Gauge(#[from] gauge::GaugeError),
-    /// A driver file that cannot be opened.
-    #[error("{path}: cannot open: {error}")]
+    /// A driver file that cannot be opened. The cause is in the message once (it is not
+    /// also a `source`, which error reports would print a second time).
+    #[error("{path} (TOML key {key}): cannot open: {error}")]
     Io {
         /// The file.
         path: String,
+        /// The gauge TOML key that names it, e.g. `drivers.enso`.
+        key: &'static str,
         /// The I/O error.
-        #[source]
         error: std::io::Error,
     },
     /// A driver file that cannot be parsed.
@@ -135,11 +137,12 @@ pub fn prepare(config: &GaugeConfig) -> Result<PreparedGauge, PrepareError> {
     prepare_from(config.clone(), &record, drivers)
 }
 
-fn open(path: &Path) -> Result<BufReader<File>, PrepareError> {
+fn open(path: &Path, key: &'static str) -> Result<BufReader<File>, PrepareError> {
     File::open(path)
         .map(BufReader::new)
         .map_err(|error| PrepareError::Io {
             path: path.display().to_string(),
+            key,
             error,
         })
 }
@@ -172,15 +175,19 @@ pub fn load_drivers(
     let files = &config.drivers;
     let name = |p: &Path| p.display().to_string();
     let enso = match &files.enso {
-        Some(p) => Some(EnsoSeries::parse(open(p)?, &name(p))?),
+        Some(p) => Some(EnsoSeries::parse(open(p, "drivers.enso")?, &name(p))?),
         None => None,
     };
     let rmm = match &files.rmm {
-        Some(p) => Some(RmmSeries::parse(open(p)?, &name(p))?),
+        Some(p) => Some(RmmSeries::parse(open(p, "drivers.rmm")?, &name(p))?),
         None => None,
     };
     let wind = match &files.wind {
-        Some(p) => Some(WindSeries::parse(open(p)?, &name(p), config.utc_offset)?),
+        Some(p) => Some(WindSeries::parse(
+            open(p, "drivers.wind")?,
+            &name(p),
+            config.utc_offset,
+        )?),
         None => None,
     };
     let mut notes = Vec::new();
@@ -188,6 +195,7 @@ pub fn load_drivers(
         Some(p) => {
             let text = std::fs::read_to_string(p).map_err(|error| PrepareError::Io {
                 path: name(p),
+                key: "drivers.enso_forecast",
                 error,
             })?;
             let forecast = EnsoForecast::parse(text.as_bytes(), &name(p), &config.seasons.specs)?;
