@@ -396,12 +396,13 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     );
     assert_eq!(copy["skill"]["scores"], original["skill"]["scores"]);
 
-    // A refit that fails (a record far too short to fit) keeps the previous model serving.
+    // A refit that fails (a record far too short to fit, replacing the whole record, which
+    // takes the shrink confirmation) keeps the previous model serving.
     let short = "time,level\n2020-01-01T00:00:00Z,0.10\n2020-01-01T01:00:00Z,0.30\n";
     call(
         addr,
         "PUT",
-        &format!("/api/v1/gauges/{COPY}/levels"),
+        &format!("/api/v1/gauges/{COPY}/levels?mode=replace&confirm=shrink"),
         short.into(),
         200,
     )
@@ -561,13 +562,22 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
         issued["issued"][0]["verification"]
     );
 
-    // The rest of the record arrives, merged into the stored one; uploads change nothing
-    // served until a refit, after which the outlook issued earlier is scored against it.
+    // The rest of the record arrives, merged into the stored one, with the forecast for the
+    // season after it; uploads change nothing served until a refit, after which the outlook
+    // issued earlier is scored against the record.
     call(
         addr,
         "PUT",
         &format!("/api/v1/gauges/{id}/levels"),
         full,
+        200,
+    )
+    .await;
+    call(
+        addr,
+        "PUT",
+        "/api/v1/forecasts/enso/enso-forecast-2026-DJF",
+        std::fs::read(demo.join("../drivers/enso-forecast-2026-DJF.json")).unwrap(),
         200,
     )
     .await;
@@ -621,9 +631,13 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
         200,
     )
     .await;
-    assert_eq!(
+    assert_ne!(
         served["model_version"], o["model_version"],
-        "an upload does not refit"
+        "the refit serves"
+    );
+    assert_eq!(
+        issued["issued"][0]["model_version"], o["model_version"],
+        "the issued outlook keeps its model version"
     );
     stop(running).await;
     let _ = std::fs::remove_dir_all(&dir);
