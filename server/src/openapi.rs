@@ -100,6 +100,12 @@ pub const OPERATIONS: &[(&str, &str, &str, &str)] = &[
         "UploadReceipt",
     ),
     (
+        "post",
+        "/api/v1/drivers/{kind}/{name}/versions/{version}/restore",
+        "Store an earlier version of a named series (kind also enso_forecast) as its newest",
+        "UploadReceipt",
+    ),
+    (
         "put",
         "/api/v1/forecasts/enso/{name}",
         "Store an ENSO forecast for a target season as a new version of a named forecast series",

@@ -470,3 +470,39 @@ async fn a_refit_missing_a_driver_series_names_it_and_its_toml_key() {
     }
     let _ = std::fs::remove_dir_all(&data);
 }
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_bad_series_version_is_undone_by_a_restore() {
+    let (addr, _stop, _server) = serve(state(true)).await;
+    let put = |csv: &'static str| {
+        call(
+            addr,
+            "PUT",
+            "/api/v1/drivers/enso/e".into(),
+            Some(TOKEN),
+            csv.as_bytes().to_vec(),
+        )
+    };
+    let first = put("month,anomaly\n2020-01,0.5\n").await;
+    ok(&first, "first");
+    ok(&put("month,anomaly\n2020-01,-2.5\n").await, "second");
+    let version = first.json()["version"].as_i64().unwrap();
+    let r = call(
+        addr,
+        "POST",
+        format!("/api/v1/drivers/enso/e/versions/{version}/restore"),
+        Some(TOKEN),
+        vec![],
+    )
+    .await;
+    ok(&r, "restore");
+    assert_eq!(r.json()["content_hash"], first.json()["content_hash"]);
+    let list = call(addr, "GET", "/api/v1/drivers".into(), None, vec![])
+        .await
+        .json();
+    assert_eq!(
+        list["series"][0]["versions"].as_array().unwrap().len(),
+        3,
+        "{list}"
+    );
+}

@@ -36,6 +36,10 @@ const EXPECTED: &[(&str, &str)] = &[
     ("get", "/api/v1/drivers"),
     ("put", "/api/v1/drivers/{kind}/{name}"),
     ("put", "/api/v1/forecasts/enso/{name}"),
+    (
+        "post",
+        "/api/v1/drivers/{kind}/{name}/versions/{version}/restore",
+    ),
     ("post", "/api/v1/gauges/{id}/refit"),
 ];
 

@@ -63,6 +63,10 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
         )
         .route("/api/v1/gauges/{id}/refit", post(write::refit))
         .route(
+            "/api/v1/drivers/{kind}/{name}/versions/{version}/restore",
+            post(write::restore_series),
+        )
+        .route(
             "/api/v1/gauges/{id}/versions/{input}/{version}/restore",
             post(write::restore_version),
         )

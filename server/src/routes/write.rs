@@ -486,6 +486,37 @@ pub fn users_of(state: &AppState, key: &SeriesKey) -> Result<Vec<String>, AppErr
         .collect())
 }
 
+/// `POST /api/v1/drivers/{kind}/{name}/versions/{version}/restore`: stores an earlier
+/// version of a named series (`kind` also `enso_forecast`) as its newest.
+pub async fn restore_series(
+    State(state): State<Arc<AppState>>,
+    Path((kind, name, version)): Path<(String, String, i64)>,
+) -> Result<Json<api::UploadReceipt>, AppError> {
+    let kind = SeriesKind::parse(&kind).ok_or_else(|| {
+        AppError::NotFound(format!(
+            "no driver kind {kind:?}; kinds are enso, rmm, wind and enso_forecast"
+        ))
+    })?;
+    let key = series_key(kind, &name)?;
+    let receipt = blocking(&state, move |state| {
+        let k = key.clone();
+        let (_, old) = state
+            .store
+            .call_blocking(move |c| store::series_versions(c, &k))?
+            .into_iter()
+            .find(|(v, _)| *v == version)
+            .ok_or_else(|| {
+                AppError::NotFound(format!(
+                    "series {} has no version {version}",
+                    key.describe()
+                ))
+            })?;
+        store_series(state, key, old.csv, old.rows)
+    })
+    .await?;
+    Ok(Json(receipt))
+}
+
 /// `POST /api/v1/gauges/{id}/refit`: rebuilds the gauge's model on its newest inputs; swaps
 /// it in only on success. Waits for the gauge's earlier writes, then for a refit permit.
 pub async fn refit(
