@@ -506,3 +506,82 @@ async fn a_bad_series_version_is_undone_by_a_restore() {
         "{list}"
     );
 }
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_shared_series_update_reaches_its_gauges_at_their_refits_with_a_note() {
+    let data = demo_folder("shared-series");
+    let second = std::fs::read_to_string(data.join("gauges/port-tamsin.toml"))
+        .unwrap()
+        .replace("id = \"port-tamsin\"", "id = \"tamsin-two\"");
+    std::fs::write(data.join("gauges/tamsin-two.toml"), second).unwrap();
+    let state = seeded_state(&data).await;
+    let (addr, _stop, _server) = serve(state).await;
+    let outlook = |id: &str| {
+        call(
+            addr,
+            "GET",
+            format!("/api/v1/gauges/{id}/outlook"),
+            None,
+            vec![],
+        )
+    };
+    let before_a = outlook("port-tamsin").await.json();
+    let before_b = outlook("tamsin-two").await;
+    // A new version of the ENSO series both gauges choose, from 2005 on only.
+    let enso = std::fs::read_to_string(data.join("drivers/enso-monthly.csv")).unwrap();
+    let short: String = enso
+        .lines()
+        .enumerate()
+        .filter(|(i, l)| *i == 0 || l.get(..4).is_some_and(|y| y >= "2005"))
+        .map(|(_, l)| format!("{l}\n"))
+        .collect();
+    let r = call(
+        addr,
+        "PUT",
+        "/api/v1/drivers/enso/enso-monthly".into(),
+        Some(TOKEN),
+        short.into_bytes(),
+    )
+    .await;
+    ok(&r, "new ENSO version");
+    assert!(
+        r.body.contains("port-tamsin") && r.body.contains("tamsin-two"),
+        "{}",
+        r.body
+    );
+    // Nothing served changes before a refit.
+    assert_eq!(outlook("tamsin-two").await.body, before_b.body);
+    let r = call(
+        addr,
+        "POST",
+        "/api/v1/gauges/port-tamsin/refit".into(),
+        Some(TOKEN),
+        vec![],
+    )
+    .await;
+    ok(&r, "refit");
+    let after_a = outlook("port-tamsin").await.json();
+    assert_ne!(after_a["fit_period"], before_a["fit_period"]);
+    let notes = after_a["notes"].to_string();
+    assert!(
+        notes.contains("fit period changed")
+            && notes.contains("enso/enso-monthly has a new version"),
+        "{notes}"
+    );
+    // The other gauge that chose it gets it at its own refit, not before.
+    assert_eq!(outlook("tamsin-two").await.body, before_b.body);
+    let r = call(
+        addr,
+        "POST",
+        "/api/v1/gauges/tamsin-two/refit".into(),
+        Some(TOKEN),
+        vec![],
+    )
+    .await;
+    ok(&r, "refit b");
+    assert_eq!(
+        outlook("tamsin-two").await.json()["fit_period"],
+        after_a["fit_period"]
+    );
+    let _ = std::fs::remove_dir_all(&data);
+}
