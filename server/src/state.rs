@@ -350,34 +350,38 @@ pub fn load_inputs_at(
     let (mut enso, mut rmm, mut wind, mut enso_forecasts) = (None, None, None, Vec::new());
     for (key, _, _) in chosen_series(&meta) {
         let limit = at.and_then(|v| v.series.get(&key.describe()).copied());
-        let mut all = store::series_versions(conn, &key)?;
-        if let Some(limit) = limit
-            && all.iter().any(|(v, _)| *v <= limit)
-        {
-            all.retain(|(v, _)| *v <= limit);
+        if key.kind == SeriesKind::EnsoForecast {
+            // Every version up to the limit: each may be for another target season.
+            let mut all = store::series_versions(conn, &key)?;
+            if let Some(limit) = limit
+                && all.iter().any(|(v, _)| *v <= limit)
+            {
+                all.retain(|(v, _)| *v <= limit);
+            }
+            let Some(newest) = all.last().map(|(v, _)| *v) else {
+                continue;
+            };
+            versions.series.insert(key.describe(), newest);
+            for (v, record) in &all {
+                let forecast = serde_json::from_slice::<api::EnsoForecast>(&record.csv)
+                    .map_err(|e| corrupt(format!("forecast {} version {v}", key.describe()), &e))?;
+                enso_forecasts.push(forecast);
+            }
+            continue;
         }
-        let Some(newest) = all.last().map(|(v, _)| *v) else {
+        // The version the limit names, else (pruned or never named) the newest.
+        let found = match store::get_series_at_most(conn, &key, limit)? {
+            Some(found) => Some(found),
+            None => store::get_series(conn, &key)?,
+        };
+        let Some((version, record)) = found else {
             continue;
         };
-        versions.series.insert(key.describe(), newest);
+        versions.series.insert(key.describe(), version);
         match key.kind {
-            SeriesKind::EnsoForecast => {
-                for (v, record) in &all {
-                    let forecast = serde_json::from_slice::<api::EnsoForecast>(&record.csv)
-                        .map_err(|e| {
-                            corrupt(format!("forecast {} version {v}", key.describe()), &e)
-                        })?;
-                    enso_forecasts.push(forecast);
-                }
-            }
-            kind => {
-                let csv = all.pop().map(|(_, r)| r.csv);
-                match kind {
-                    SeriesKind::Enso => enso = csv,
-                    SeriesKind::Rmm => rmm = csv,
-                    _ => wind = csv,
-                }
-            }
+            SeriesKind::Enso => enso = Some(record.csv),
+            SeriesKind::Rmm => rmm = Some(record.csv),
+            _ => wind = Some(record.csv),
         }
     }
     Ok(Some((

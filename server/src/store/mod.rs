@@ -31,8 +31,9 @@ pub use outlooks::{IssuedFilter, IssuedRecord, list_issued, record_issued};
 pub use schema::SCHEMA_VERSION;
 pub use series::{
     LevelsRecord, SeriesKey, SeriesKind, SeriesRecord, SeriesSummary, VersionInfo, get_levels,
-    get_levels_at, get_series, latest_levels_version, list_levels_versions, list_series,
-    prune_gauge_versions, put_levels, put_series, series_name, series_versions, valid_series_name,
+    get_levels_at, get_series, get_series_at_most, latest_levels_version, list_levels_versions,
+    list_series, prune_gauge_versions, put_levels, put_series, series_name, series_versions,
+    valid_series_name,
 };
 pub use versions::{get_gauge_version, latest_gauge_version, list_gauge_versions, retire_gauge};
 

@@ -378,11 +378,22 @@ pub fn get_series(
     conn: &Connection,
     key: &SeriesKey,
 ) -> Result<Option<(i64, SeriesRecord)>, StoreError> {
+    get_series_at_most(conn, key, None)
+}
+
+/// The newest version of a series no newer than `limit` (any version when `None`), with its
+/// version id.
+pub fn get_series_at_most(
+    conn: &Connection,
+    key: &SeriesKey,
+    limit: Option<i64>,
+) -> Result<Option<(i64, SeriesRecord)>, StoreError> {
     let row = conn
         .query_row(
             "SELECT id, gzip, rows, content_hash, uploaded_at FROM series_versions
-             WHERE kind = ?1 AND name = ?2 ORDER BY id DESC LIMIT 1",
-            params![key.kind.as_str(), key.name],
+             WHERE kind = ?1 AND name = ?2 AND (?3 IS NULL OR id <= ?3)
+             ORDER BY id DESC LIMIT 1",
+            params![key.kind.as_str(), key.name, limit],
             |row| {
                 Ok((
                     row.get(0)?,
