@@ -320,7 +320,7 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     call(
         addr,
         "PUT",
-        &format!("/api/v1/drivers/wind/{COPY}"),
+        &format!("/api/v1/drivers/wind/{DEMO_GAUGE}-wind"),
         wind,
         200,
     )
@@ -359,12 +359,13 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     );
     assert_eq!(copy["skill"]["scores"], original["skill"]["scores"]);
 
-    // A refit that fails (a record far too short to fit) keeps the previous model serving.
+    // A refit that fails (a record far too short to fit, replacing the whole record, which
+    // takes the shrink confirmation) keeps the previous model serving.
     let short = "time,level\n2020-01-01T00:00:00Z,0.10\n2020-01-01T01:00:00Z,0.30\n";
     call(
         addr,
         "PUT",
-        &format!("/api/v1/gauges/{COPY}/levels"),
+        &format!("/api/v1/gauges/{COPY}/levels?mode=replace&confirm=shrink"),
         short.into(),
         200,
     )
@@ -454,15 +455,15 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
     .await;
     for (path, file) in [
         (
-            "/api/v1/drivers/enso".to_owned(),
+            "/api/v1/drivers/enso/enso-monthly".to_owned(),
             "../drivers/enso-monthly.csv".to_owned(),
         ),
         (
-            "/api/v1/drivers/rmm".to_owned(),
+            "/api/v1/drivers/rmm/rmm-daily".to_owned(),
             "../drivers/rmm-daily.csv".to_owned(),
         ),
         (
-            format!("/api/v1/drivers/wind/{id}"),
+            format!("/api/v1/drivers/wind/{DEMO_GAUGE}-wind"),
             format!("{DEMO_GAUGE}-wind.csv"),
         ),
     ] {
@@ -490,7 +491,14 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
     .await;
     let forecast = r#"{"season": "2025-DJF", "issued": "2025-11-15", "note": "plumbing check",
         "probabilities": {"la_nina": 0.5, "neutral": 0.4, "el_nino": 0.1}}"#;
-    call(addr, "PUT", "/api/v1/forecasts/enso", forecast.into(), 200).await;
+    call(
+        addr,
+        "PUT",
+        "/api/v1/forecasts/enso/enso-forecast-2026-DJF",
+        forecast.into(),
+        200,
+    )
+    .await;
     call(
         addr,
         "POST",
@@ -519,7 +527,7 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
         "{}",
         o["notes"]
     );
-    let issued_path = format!("/api/v1/outlooks/issued?gauge={id}");
+    let issued_path = format!("/api/v1/outlooks/issued?gauge={id}&season=2025-DJF");
     let issued = call(addr, "GET", &issued_path, vec![], 200).await;
     assert!(
         issued["issued"][0]["verification"].is_null(),
@@ -527,12 +535,30 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
         issued["issued"][0]["verification"]
     );
 
-    // The rest of the record arrives (no refit): the issued outlook is scored against it.
+    // The rest of the record arrives, merged into the stored one, with the forecast for the
+    // season after it; uploads change nothing served until a refit, after which the outlook
+    // issued earlier is scored against the record.
     call(
         addr,
         "PUT",
         &format!("/api/v1/gauges/{id}/levels"),
         full,
+        200,
+    )
+    .await;
+    call(
+        addr,
+        "PUT",
+        "/api/v1/forecasts/enso/enso-forecast-2026-DJF",
+        std::fs::read(demo.join("../drivers/enso-forecast-2026-DJF.json")).unwrap(),
+        200,
+    )
+    .await;
+    call(
+        addr,
+        "POST",
+        &format!("/api/v1/gauges/{id}/refit"),
+        vec![],
         200,
     )
     .await;
@@ -578,9 +604,13 @@ async fn an_issued_outlook_is_scored_once_its_season_is_in_the_record() {
         200,
     )
     .await;
-    assert_eq!(
+    assert_ne!(
         served["model_version"], o["model_version"],
-        "an upload does not refit"
+        "the refit serves"
+    );
+    assert_eq!(
+        issued["issued"][0]["model_version"], o["model_version"],
+        "the issued outlook keeps its model version"
     );
     stop(running).await;
     let _ = std::fs::remove_dir_all(&dir);

@@ -34,6 +34,11 @@ const EARLIEST_TIME: i64 = -5_364_662_400;
 /// 2201-01-01T00:00:00Z: later times are taken for typing errors.
 const LATEST_TIME: i64 = 7_289_654_400;
 
+/// The largest plausible level magnitude, metres from the datum: the largest tidal ranges
+/// are about 16 m and gauge datums sit near the water, so +/-100 m only catches typing and
+/// unit errors (common practice, no source).
+pub const MAX_LEVEL_M: f64 = 100.0;
+
 /// Errors reading a water-level file. Each names the source (file name or other label).
 #[derive(Debug, thiserror::Error)]
 pub enum IngestError {
@@ -648,7 +653,7 @@ impl RowParser<'_> {
             _ => Err(IngestError::BadHeader {
                 source_name: self.source_name.to_owned(),
                 line: line_number,
-                found: String::from_utf8_lossy(line).into_owned(),
+                found: crate::drivers::clip_echo(&String::from_utf8_lossy(line)),
             }),
         }
     }
@@ -665,7 +670,7 @@ impl RowParser<'_> {
             line,
             field,
             expected,
-            text: String::from_utf8_lossy(text).into_owned(),
+            text: crate::drivers::clip_echo(&String::from_utf8_lossy(text)),
         }
     }
 
@@ -713,6 +718,17 @@ impl RowParser<'_> {
         let level_m = match parse_level(level_field) {
             Level::Missing => None,
             Level::Value(v) if self.options.missing_sentinel == Some(v) => None,
+            Level::Value(v)
+                if !(-MAX_LEVEL_M..=MAX_LEVEL_M)
+                    .contains(&(v * self.options.units.to_metres())) =>
+            {
+                return Err(self.malformed(
+                    line_number,
+                    "level",
+                    "a level within +/-100 m of the datum",
+                    level_field,
+                ));
+            }
             Level::Value(v) => Some(v * self.options.units.to_metres()),
             Level::Bad => {
                 return Err(self.malformed(

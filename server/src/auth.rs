@@ -12,15 +12,14 @@ impl Token {
         Self(secret)
     }
 
-    /// Whether an `Authorization` header value is `Bearer <this token>`.
+    /// Whether an `Authorization` header value is `Bearer <this token>`; the scheme name is
+    /// case-insensitive (RFC 9110 section 11.1), the token exact.
     pub fn accepts(&self, header: &str) -> bool {
-        let Some(given) = header
-            .strip_prefix("Bearer ")
-            .or_else(|| header.strip_prefix("bearer "))
-        else {
+        let Some((scheme, given)) = header.trim_start().split_once(' ') else {
             return false;
         };
-        constant_time_eq(given.trim().as_bytes(), self.0.as_bytes())
+        scheme.eq_ignore_ascii_case("bearer")
+            && constant_time_eq(given.trim().as_bytes(), self.0.as_bytes())
     }
 }
 
@@ -60,6 +59,7 @@ mod tests {
     fn only_the_bearer_scheme_with_the_exact_token_passes() {
         let t = Token::new("0123456789abcdef".into());
         assert!(t.accepts("Bearer 0123456789abcdef"));
+        assert!(t.accepts("bearer 0123456789abcdef") && t.accepts("BEARER 0123456789abcdef"));
         assert!(!t.accepts("Basic 0123456789abcdef"));
         assert!(!t.accepts("Bearer 0123456789abcdeF"));
         assert!(!t.accepts("0123456789abcdef"));

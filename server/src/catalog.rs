@@ -107,6 +107,11 @@ pub struct GaugeEntry {
     pub history: Result<Arc<SerializedBody<api::SeasonHistory>>, PipelineError>,
     /// The fitted model, or why there is none.
     pub model: Result<Arc<ServedModel>, PipelineError>,
+    /// The model's generation (its store id; 0 without a model): a swap never installs an
+    /// older generation than the one serving.
+    pub generation: i64,
+    /// The versions of the stored inputs this entry was built from.
+    pub inputs: crate::state::InputVersions,
 }
 
 impl GaugeEntry {
@@ -151,10 +156,24 @@ impl Catalog {
         self.read().values().cloned().collect()
     }
 
-    /// Puts an entry in place of the gauge's previous one.
-    pub fn swap_in(&self, entry: GaugeEntry) {
+    /// Puts an entry in place of the gauge's previous one, unless that one serves a newer
+    /// model generation; returns whether it was put in.
+    pub fn swap_in(&self, entry: GaugeEntry) -> bool {
         let mut map = self.entries.write().unwrap_or_else(|p| p.into_inner());
+        if map
+            .get(&entry.meta.id)
+            .is_some_and(|old| old.generation > entry.generation)
+        {
+            return false;
+        }
         map.insert(entry.meta.id.clone(), Arc::new(entry));
+        true
+    }
+
+    /// Stops serving a gauge (retired).
+    pub fn remove(&self, id: &str) {
+        let mut map = self.entries.write().unwrap_or_else(|p| p.into_inner());
+        map.remove(id);
     }
 
     /// Marks the startup load as finished.

@@ -3,7 +3,8 @@
 //!
 //! Precedence, highest first: command-line flags, environment variables (`TIDETALLY_ADDR`,
 //! `TIDETALLY_DB`, `TIDETALLY_DATA`, `TIDETALLY_TOKEN`, `TIDETALLY_CORS_ORIGINS`,
-//! `TIDETALLY_LOG_FORMAT`), the config file (`--config FILE`), then the defaults.
+//! `TIDETALLY_LOG_FORMAT`, `TIDETALLY_HEADER_READ_TIMEOUT_SECS`, `TIDETALLY_IDLE_TIMEOUT_SECS`,
+//! `TIDETALLY_MAX_CONNECTIONS`), the config file (`--config FILE`), then the defaults.
 
 use std::net::SocketAddr;
 use std::path::{Path, PathBuf};
@@ -12,6 +13,7 @@ use std::time::Duration;
 use serde::Deserialize;
 
 use crate::auth::Token;
+use crate::connections::ConnLimits;
 
 /// Default listening address.
 pub const DEFAULT_ADDR: &str = "127.0.0.1:8080";
@@ -61,6 +63,19 @@ pub enum ConfigError {
     /// A zero or absurd timeout.
     #[error("request timeout {0} s must be 1 to 3600 seconds")]
     BadTimeout(u64),
+    /// A zero or absurd connection timeout.
+    #[error("{0} = {1} must be 1 to 3600 seconds")]
+    BadConnTimeout(&'static str, u64),
+    /// A connection cap of zero or not below the file limit.
+    #[error(
+        "max_connections = {value} must be at least 1 and at most 64 below the process's open-file limit ({file_limit:?})"
+    )]
+    BadMaxConnections {
+        /// The value.
+        value: usize,
+        /// The soft limit on open files, where known.
+        file_limit: Option<u64>,
+    },
 }
 
 /// Settings as given, before validation. Every field is optional; later sources override
@@ -84,6 +99,12 @@ pub struct RawServeConfig {
     pub request_timeout_secs: Option<u64>,
     /// `max-age` of read responses in seconds.
     pub cache_max_age_secs: Option<u64>,
+    /// Longest wait for a request's headers, seconds.
+    pub header_read_timeout_secs: Option<u64>,
+    /// Idle connections are closed after this many seconds.
+    pub idle_timeout_secs: Option<u64>,
+    /// Most connections open at once.
+    pub max_connections: Option<usize>,
 }
 
 impl RawServeConfig {
@@ -121,6 +142,11 @@ impl RawServeConfig {
             log_format: get("TIDETALLY_LOG_FORMAT"),
             request_timeout_secs: None,
             cache_max_age_secs: None,
+            header_read_timeout_secs: get("TIDETALLY_HEADER_READ_TIMEOUT_SECS")
+                .and_then(|v| v.trim().parse().ok()),
+            idle_timeout_secs: get("TIDETALLY_IDLE_TIMEOUT_SECS")
+                .and_then(|v| v.trim().parse().ok()),
+            max_connections: get("TIDETALLY_MAX_CONNECTIONS").and_then(|v| v.trim().parse().ok()),
         }
     }
 
@@ -135,6 +161,11 @@ impl RawServeConfig {
             log_format: over.log_format.or(self.log_format),
             request_timeout_secs: over.request_timeout_secs.or(self.request_timeout_secs),
             cache_max_age_secs: over.cache_max_age_secs.or(self.cache_max_age_secs),
+            header_read_timeout_secs: over
+                .header_read_timeout_secs
+                .or(self.header_read_timeout_secs),
+            idle_timeout_secs: over.idle_timeout_secs.or(self.idle_timeout_secs),
+            max_connections: over.max_connections.or(self.max_connections),
         }
     }
 
@@ -168,6 +199,32 @@ impl RawServeConfig {
         if !(1..=3600).contains(&timeout) {
             return Err(ConfigError::BadTimeout(timeout));
         }
+        let defaults = ConnLimits::default();
+        let seconds = |value: Option<u64>, default: Duration, name: &'static str| match value {
+            None => Ok(default),
+            Some(s) if (1..=3600).contains(&s) => Ok(Duration::from_secs(s)),
+            Some(s) => Err(ConfigError::BadConnTimeout(name, s)),
+        };
+        let header_read_timeout = seconds(
+            self.header_read_timeout_secs,
+            defaults.header_read_timeout,
+            "header_read_timeout_secs",
+        )?;
+        let idle_timeout = seconds(
+            self.idle_timeout_secs,
+            defaults.idle_timeout,
+            "idle_timeout_secs",
+        )?;
+        let max_connections = self.max_connections.unwrap_or(defaults.max_connections);
+        let file_limit = crate::connections::open_file_limit();
+        // Room for the store, the log and the listener besides the connections.
+        let room = file_limit.map(|l| l.saturating_sub(64));
+        if max_connections == 0 || room.is_some_and(|r| max_connections as u64 > r) {
+            return Err(ConfigError::BadMaxConnections {
+                value: max_connections,
+                file_limit,
+            });
+        }
         let data_explicit = self.data.is_some();
         Ok(ServeConfig {
             addr,
@@ -179,6 +236,11 @@ impl RawServeConfig {
             json_logs,
             request_timeout: Duration::from_secs(timeout),
             cache_max_age: Duration::from_secs(self.cache_max_age_secs.unwrap_or(300)),
+            connections: ConnLimits {
+                header_read_timeout,
+                idle_timeout,
+                max_connections,
+            },
         })
     }
 }
@@ -225,6 +287,8 @@ pub struct ServeConfig {
     pub request_timeout: Duration,
     /// `max-age` of read responses.
     pub cache_max_age: Duration,
+    /// Header-read and idle timeouts and the cap on open connections.
+    pub connections: ConnLimits,
 }
 
 impl ServeConfig {

@@ -12,6 +12,23 @@ use crate::upload::UploadError;
 /// Media type of problem responses.
 pub const PROBLEM_JSON: &str = "application/problem+json";
 
+/// Longest `detail` (and logged error) in characters; the rest is counted, not repeated.
+pub const MAX_DETAIL_CHARS: usize = 400;
+
+/// `Retry-After` of answers that mean "not yet" (startup, a full on-demand queue), seconds.
+pub const RETRY_AFTER_SECS: &str = "5";
+
+/// `text` cut to `max` characters, saying how many more there were.
+pub fn clip(text: &str, max: usize) -> String {
+    match text.char_indices().nth(max) {
+        None => text.to_owned(),
+        Some((cut, _)) => {
+            let more = text[cut..].chars().count();
+            format!("{}... ({more} more characters)", &text[..cut])
+        }
+    }
+}
+
 /// Everything a request can fail with.
 #[derive(Debug, thiserror::Error)]
 pub enum AppError {
@@ -43,8 +60,15 @@ pub enum AppError {
     #[error(transparent)]
     Pipeline(#[from] PipelineError),
     /// The service is still loading.
-    #[error("the service is still loading its store and models")]
+    #[error("the service is still loading its store and models; try again shortly")]
     NotReady,
+    /// The write conflicts with what is stored (e.g. a replace that would shrink a record
+    /// without the confirmation).
+    #[error("{0}")]
+    Conflict(String),
+    /// The on-demand pool's queue is full.
+    #[error(transparent)]
+    Busy(#[from] crate::pool::PoolFull),
     /// The store failed. Logged in full; the client sees a generic message.
     #[error("store: {0}")]
     Store(#[from] StoreError),
@@ -72,7 +96,8 @@ impl AppError {
                 }
                 PipelineError::SeasonNotServed { .. } => StatusCode::NOT_FOUND,
             },
-            AppError::NotReady => StatusCode::SERVICE_UNAVAILABLE,
+            AppError::NotReady | AppError::Busy(_) => StatusCode::SERVICE_UNAVAILABLE,
+            AppError::Conflict(_) => StatusCode::CONFLICT,
             AppError::Store(_) | AppError::Internal(_) => StatusCode::INTERNAL_SERVER_ERROR,
         }
     }
@@ -93,6 +118,8 @@ impl AppError {
             AppError::Pipeline(PipelineError::SeasonNotServed { .. }) => "not-found",
             AppError::Pipeline(_) => "pipeline-failed",
             AppError::NotReady => "not-ready",
+            AppError::Busy(_) => "busy",
+            AppError::Conflict(_) => "conflict",
             AppError::Store(_) | AppError::Internal(_) => "internal",
         }
     }
@@ -105,7 +132,7 @@ impl AppError {
             AppError::Store(_) | AppError::Internal(_) => {
                 "the service failed to answer this request; the error is in its log".to_owned()
             }
-            other => other.to_string(),
+            other => clip(&other.to_string(), MAX_DETAIL_CHARS),
         };
         Problem {
             kind: format!("/problems/{}", self.slug()),
@@ -120,12 +147,22 @@ impl AppError {
 impl IntoResponse for AppError {
     fn into_response(self) -> Response {
         let problem = self.problem();
+        let logged = clip(&self.to_string(), MAX_DETAIL_CHARS);
         if problem.status >= 500 {
-            tracing::error!(status = problem.status, error = %self, "request failed");
+            tracing::error!(status = problem.status, error = %logged, "request failed");
         } else {
-            tracing::info!(status = problem.status, error = %self, "request refused");
+            tracing::info!(status = problem.status, error = %logged, "request refused");
         }
         let mut response = problem_response(problem);
+        if matches!(self, AppError::NotReady | AppError::Busy(_)) {
+            response.headers_mut().insert(
+                header::RETRY_AFTER,
+                HeaderValue::from_static(RETRY_AFTER_SECS),
+            );
+            response
+                .headers_mut()
+                .insert(header::CACHE_CONTROL, HeaderValue::from_static("no-store"));
+        }
         if matches!(self, AppError::Unauthorized) {
             response.headers_mut().insert(
                 header::WWW_AUTHENTICATE,

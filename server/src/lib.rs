@@ -11,12 +11,15 @@ pub mod catalog;
 pub mod cautions;
 pub mod cli;
 pub mod config;
+pub mod connections;
 mod cors;
 pub mod error;
 pub mod etag;
+pub mod merge;
 pub mod middleware;
 pub mod openapi;
 pub mod pipeline;
+pub mod pool;
 pub mod query;
 pub mod routes;
 pub mod state;
@@ -45,13 +48,18 @@ pub async fn run(
     serve_router(listener, app(state), shutdown).await
 }
 
-/// Serves any router built by [`routes::router`] on `listener` until `shutdown` resolves.
+/// Serves any router built by [`routes::router`] on `listener` with the default connection
+/// limits until `shutdown` resolves.
 pub async fn serve_router(
     listener: tokio::net::TcpListener,
     router: axum::Router,
     shutdown: impl Future<Output = ()> + Send + 'static,
 ) -> std::io::Result<()> {
-    axum::serve(listener, router)
-        .with_graceful_shutdown(shutdown)
-        .await
+    connections::serve(
+        listener,
+        router,
+        connections::ConnLimits::default(),
+        shutdown,
+    )
+    .await
 }

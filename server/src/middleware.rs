@@ -17,6 +17,56 @@ use crate::state::AppState;
 /// The largest response body the ETag layer buffers to hash; bigger ones pass unhashed.
 const MAX_HASHED_BODY: usize = 64 << 20;
 
+/// Longest request path repeated in a problem's `instance`.
+const MAX_ECHOED_PATH_CHARS: usize = 200;
+
+/// The longest request target (path and query) answered; longer ones get `414`.
+pub const MAX_URI_BYTES: usize = 8 << 10;
+
+/// The largest header block (names and values) answered; larger ones get `431`. Beyond the
+/// HTTP parser's own buffer (about 400 KiB) the connection gets a bare `431` from the parser.
+pub const MAX_HEADER_BYTES: usize = 16 << 10;
+
+/// Answers `414` and `431` as problems for request targets and header blocks over the limits.
+pub async fn request_limits(request: Request, next: Next) -> Response {
+    let target = request
+        .uri()
+        .path_and_query()
+        .map_or(0, |p| p.as_str().len());
+    if target > MAX_URI_BYTES {
+        return limit_problem(
+            StatusCode::URI_TOO_LONG,
+            "uri-too-long",
+            format!("the request target has {target} bytes; at most {MAX_URI_BYTES} are answered"),
+        );
+    }
+    let headers: usize = request
+        .headers()
+        .iter()
+        .map(|(name, value)| name.as_str().len() + value.len() + 4)
+        .sum();
+    if headers > MAX_HEADER_BYTES {
+        return limit_problem(
+            StatusCode::REQUEST_HEADER_FIELDS_TOO_LARGE,
+            "headers-too-large",
+            format!(
+                "the request headers have {headers} bytes; at most {MAX_HEADER_BYTES} are answered"
+            ),
+        );
+    }
+    next.run(request).await
+}
+
+fn limit_problem(status: StatusCode, slug: &str, detail: String) -> Response {
+    problem_response(Problem {
+        kind: format!("/problems/{slug}"),
+        title: status.canonical_reason().unwrap_or("Error").to_owned(),
+        status: status.as_u16(),
+        detail,
+        instance: String::new(),
+    })
+}
+
 /// On successful GETs: adds an ETag (hashing the body unless the handler set one) and
 /// `Cache-Control`, and answers `304` when `If-None-Match` matches.
 pub async fn etag_and_cache(
@@ -81,7 +131,7 @@ pub async fn problem_shape(request: Request, next: Next) -> Response {
         Some(problem) => problem.clone(),
         None => generic_problem(status),
     };
-    problem.instance = path;
+    problem.instance = crate::error::clip(&path, MAX_ECHOED_PATH_CHARS);
     let mut shaped = problem_response(problem);
     for name in [header::WWW_AUTHENTICATE, header::ALLOW, header::RETRY_AFTER] {
         if let Some(value) = response.headers().get(&name) {
@@ -123,12 +173,19 @@ fn generic_problem(status: StatusCode) -> Problem {
     }
 }
 
-/// Lets a write through only with the configured bearer token.
+/// Lets a write through only with the configured bearer token. Reads (GET, HEAD, OPTIONS)
+/// pass to the router, which answers `405` on a write-only path.
 pub async fn require_token(
     State(state): State<Arc<AppState>>,
     request: Request,
     next: Next,
 ) -> Response {
+    if matches!(
+        *request.method(),
+        Method::GET | Method::HEAD | Method::OPTIONS
+    ) {
+        return next.run(request).await;
+    }
     let Some(token) = &state.token else {
         return AppError::WritesDisabled.into_response();
     };

@@ -58,27 +58,57 @@ pub const OPERATIONS: &[(&str, &str, &str, &str)] = &[
         "UploadReceipt",
     ),
     (
+        "delete",
+        "/api/v1/gauges/{id}",
+        "Retire a gauge: hidden from the lists, its data kept",
+        "Retired",
+    ),
+    (
         "put",
         "/api/v1/gauges/{id}/levels",
-        "Replace a gauge's water-level record (CSV, plain or gzip)",
+        "Merge water levels (CSV, plain or gzip) into the gauge's record, or replace it",
+        "UploadReceipt",
+    ),
+    (
+        "get",
+        "/api/v1/gauges/{id}/versions",
+        "Every stored version of the gauge's inputs",
+        "VersionList",
+    ),
+    (
+        "post",
+        "/api/v1/gauges/{id}/versions/{input}/{version}/restore",
+        "Store an earlier version of the gauge's TOML or levels as its newest",
+        "UploadReceipt",
+    ),
+    (
+        "post",
+        "/api/v1/gauges/{id}/versions/prune",
+        "Delete all but the newest versions of the gauge's TOML and levels",
+        "Pruned",
+    ),
+    (
+        "get",
+        "/api/v1/drivers",
+        "Every stored driver series, its versions and the gauges choosing it",
+        "SeriesList",
+    ),
+    (
+        "put",
+        "/api/v1/drivers/{kind}/{name}",
+        "Store a new version of a named driver series (kind: enso, rmm or wind)",
+        "UploadReceipt",
+    ),
+    (
+        "post",
+        "/api/v1/drivers/{kind}/{name}/versions/{version}/restore",
+        "Store an earlier version of a named series (kind also enso_forecast) as its newest",
         "UploadReceipt",
     ),
     (
         "put",
-        "/api/v1/drivers/{kind}",
-        "Replace a shared driver series (kind: enso or rmm)",
-        "UploadReceipt",
-    ),
-    (
-        "put",
-        "/api/v1/drivers/wind/{gauge}",
-        "Replace a gauge's wind series",
-        "UploadReceipt",
-    ),
-    (
-        "put",
-        "/api/v1/forecasts/enso",
-        "Store an ENSO forecast for a target season",
+        "/api/v1/forecasts/enso/{name}",
+        "Store an ENSO forecast for a target season as a new version of a named forecast series",
         "UploadReceipt",
     ),
     (
@@ -193,8 +223,32 @@ pub const SCHEMAS: &[(&str, &[(&str, &str)])] = &[
             ("bytes", "integer"),
             ("content_hash", "string"),
             ("note", "string"),
+            ("version", "integer|null"),
+            ("added", "integer|null"),
+            ("changed", "integer|null"),
+            ("unchanged", "integer|null"),
         ],
     ),
+    ("Retired", &[("retired", "string"), ("note", "string")]),
+    (
+        "Pruned",
+        &[
+            ("gauge", "string"),
+            ("deleted", "integer"),
+            ("kept_newest", "integer"),
+        ],
+    ),
+    (
+        "VersionList",
+        &[
+            ("gauge", "string"),
+            ("retired", "boolean"),
+            ("toml", "array"),
+            ("levels", "array"),
+            ("series", "array"),
+        ],
+    ),
+    ("SeriesList", &[("series", "array")]),
     (
         "Problem",
         &[
@@ -247,6 +301,23 @@ fn parameters(path: &str, method: &str) -> Vec<Value> {
         ("get", "/api/v1/gauges/{id}/seasons") => {
             params.push(query("format", false, "json (default) or csv"))
         }
+        ("put", "/api/v1/gauges/{id}/levels") => {
+            params.push(query(
+                "mode",
+                false,
+                "merge (default: new readings added, changed ones replaced) or replace",
+            ));
+            params.push(query(
+                "confirm",
+                false,
+                "shrink: needed by a replace that keeps less than half of the record's days",
+            ));
+        }
+        ("post", "/api/v1/gauges/{id}/versions/prune") => params.push(query(
+            "keep",
+            false,
+            "How many newest versions to keep (default 1)",
+        )),
         ("get", "/api/v1/outlooks") => {
             params.push(query("season", true, "Season label, e.g. 2026-DJF"))
         }
@@ -279,9 +350,11 @@ pub fn document() -> Value {
         });
         if *method != "get" {
             operation["security"] = json!([{"bearer": []}]);
-            operation["requestBody"] = json!({"required": *method == "put", "content": {
-                "application/octet-stream": {"schema": {"type": "string", "contentMediaType": "application/octet-stream"}}
-            }});
+            if *method == "put" {
+                operation["requestBody"] = json!({"required": true, "content": {
+                    "application/octet-stream": {"schema": {"type": "string", "contentMediaType": "application/octet-stream"}}
+                }});
+            }
         } else if !path.starts_with("/healthz") && !path.starts_with("/readyz") {
             operation["responses"]["304"] =
                 json!({"description": "Not modified (If-None-Match matched the ETag)"});

@@ -197,7 +197,7 @@ async fn gzip_levels_and_driver_uploads_are_accepted() {
     let enso = write(
         &app,
         "PUT",
-        "/api/v1/drivers/enso",
+        "/api/v1/drivers/enso/a-enso",
         "month,anomaly\n2020-01,0.5\n2020-02,\n",
     )
     .await;
@@ -205,26 +205,29 @@ async fn gzip_levels_and_driver_uploads_are_accepted() {
     let rmm = write(
         &app,
         "PUT",
-        "/api/v1/drivers/rmm",
+        "/api/v1/drivers/rmm/a-rmm",
         "date,rmm1,rmm2\n2020-01-01,0.1,-0.2\n",
     )
     .await;
-    assert_eq!(rmm.json()["stored"], "driver:rmm");
+    assert_eq!(rmm.json()["stored"], "driver:rmm/a-rmm");
     let wind = write(
         &app,
         "PUT",
-        "/api/v1/drivers/wind/a",
+        "/api/v1/drivers/wind/a-wind",
         "time,u,v\n2020-01-01,1.0,2.0\n",
     )
     .await;
-    assert_eq!(wind.json()["gauge"], "a");
-    write(&app, "PUT", "/api/v1/drivers/tides", "x\n")
+    assert_eq!(wind.json()["stored"], "driver:wind/a-wind");
+    write(&app, "PUT", "/api/v1/drivers/tides/a", "x\n")
         .await
         .assert_problem(404, "not-found");
     let forecast = r#"{"season": "2026-DJF", "issued": "2026-11-15",
         "probabilities": {"la_nina": 0.55, "neutral": 0.40, "el_nino": 0.05}}"#;
-    let f = write(&app, "PUT", "/api/v1/forecasts/enso", forecast).await;
-    assert_eq!(f.json()["stored"], "forecast:enso:2026-DJF");
+    let f = write(&app, "PUT", "/api/v1/forecasts/enso/a-forecast", forecast).await;
+    assert_eq!(
+        f.json()["stored"],
+        "driver:enso_forecast/a-forecast:2026-DJF"
+    );
 }
 
 #[tokio::test]
@@ -232,7 +235,7 @@ async fn bodies_over_the_limit_are_problems() {
     let app = app(state(true));
     upload_gauge(&app, "a").await;
     let big = vec![b' '; tidetally_server::routes::MAX_DOCUMENT_BYTES + 1];
-    write(&app, "PUT", "/api/v1/forecasts/enso", big)
+    write(&app, "PUT", "/api/v1/forecasts/enso/a-forecast", big)
         .await
         .assert_problem(413, "payload-too-large");
 }
@@ -291,13 +294,19 @@ async fn outlooks_are_served_from_installed_results() {
         assert_eq!(*days, want_days);
         assert!((p - want).abs() < 1e-12, "P(N >= {days}) = {p}");
     }
-    // Another season is computed on demand from the stored record: a few hours of levels
+    // The next season is computed on demand from the stored record: a few hours of levels
     // cannot be fitted, and the answer says so (twice: the failure is kept, not recomputed).
     for _ in 0..2 {
-        get(&app, "/api/v1/gauges/a/outlook?season=2025-DJF")
+        get(&app, "/api/v1/gauges/a/outlook?season=2020-DJF")
             .await
             .assert_problem(422, "pipeline-failed");
     }
+    // A season the record cannot support (neither a past season with data nor the next one)
+    // is refused without running the pipeline.
+    let p = get(&app, "/api/v1/gauges/a/outlook?season=2025-DJF")
+        .await
+        .assert_problem(404, "not-found");
+    assert!(p["detail"].as_str().unwrap().contains("2020-DJF"), "{p}");
     get(&app, "/api/v1/gauges/a/outlook?season=DJF")
         .await
         .assert_problem(400, "bad-request");
@@ -365,7 +374,7 @@ async fn season_csv_is_negotiated_and_bad_formats_refused() {
     // Levels of two days in DJF 2019 (local standard time -05:00), one reading a day: the
     // day of 2020-01-02 reaches the 0.85 m threshold, 2020-01-01 does not.
     let levels = "time,level\n2020-01-01T17:00:00Z,0.40\n2020-01-02T17:00:00Z,0.90\n";
-    write(&app, "PUT", "/api/v1/gauges/a/levels", levels).await;
+    write(&app, "PUT", "/api/v1/gauges/a/levels?mode=replace", levels).await;
     let h = get(&app, "/api/v1/gauges/a/seasons").await;
     assert_eq!(
         h.status,

@@ -26,9 +26,20 @@ const EXPECTED: &[(&str, &str)] = &[
     ("get", "/api/v1/outlooks/issued"),
     ("put", "/api/v1/gauges/{id}"),
     ("put", "/api/v1/gauges/{id}/levels"),
-    ("put", "/api/v1/drivers/{kind}"),
-    ("put", "/api/v1/drivers/wind/{gauge}"),
-    ("put", "/api/v1/forecasts/enso"),
+    ("delete", "/api/v1/gauges/{id}"),
+    ("get", "/api/v1/gauges/{id}/versions"),
+    (
+        "post",
+        "/api/v1/gauges/{id}/versions/{input}/{version}/restore",
+    ),
+    ("post", "/api/v1/gauges/{id}/versions/prune"),
+    ("get", "/api/v1/drivers"),
+    ("put", "/api/v1/drivers/{kind}/{name}"),
+    ("put", "/api/v1/forecasts/enso/{name}"),
+    (
+        "post",
+        "/api/v1/drivers/{kind}/{name}/versions/{version}/restore",
+    ),
     ("post", "/api/v1/gauges/{id}/refit"),
 ];
 
@@ -36,6 +47,9 @@ fn concrete(path: &str) -> String {
     path.replace("{id}", "a")
         .replace("{gauge}", "a")
         .replace("{kind}", "enso")
+        .replace("{name}", "a-enso")
+        .replace("{input}", "levels")
+        .replace("{version}", "1")
 }
 
 /// Checks that `body` has every required field of `schema` with the documented JSON type.
@@ -124,6 +138,15 @@ async fn real_responses_have_the_documented_fields() {
         .await
         .json();
     assert_conforms(&doc, "UploadReceipt", &receipt, "PUT levels");
+    let receipt = write(
+        &app,
+        "PUT",
+        "/api/v1/drivers/enso/a-enso",
+        "month,anomaly\n2020-01,0.5\n",
+    )
+    .await
+    .json();
+    assert_conforms(&doc, "UploadReceipt", &receipt, "PUT series");
     let st = Arc::clone(&state);
     tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
         .await
@@ -142,6 +165,8 @@ async fn real_responses_have_the_documented_fields() {
         ("/api/v1/gauges/a/hindcast", "Hindcast"),
         ("/api/v1/outlooks?season=2026-DJF", "OutlookSet"),
         ("/api/v1/outlooks/issued", "IssuedOutlookList"),
+        ("/api/v1/gauges/a/versions", "VersionList"),
+        ("/api/v1/drivers", "SeriesList"),
     ];
     for (uri, schema) in reads {
         let a = get(&app, uri).await;

@@ -68,6 +68,20 @@ pub(crate) fn expect_header(
     }
 }
 
+/// Longest offending value an error message repeats; the rest is counted, not echoed.
+pub const MAX_ECHO_CHARS: usize = 200;
+
+/// `text` cut to [`MAX_ECHO_CHARS`] characters, with the number of characters left out.
+pub fn clip_echo(text: &str) -> String {
+    match text.char_indices().nth(MAX_ECHO_CHARS) {
+        None => text.to_owned(),
+        Some((cut, _)) => {
+            let more = text[cut..].chars().count();
+            format!("{}... ({more} more characters)", &text[..cut])
+        }
+    }
+}
+
 /// A field error at `row`.
 pub(crate) fn bad_field(
     source: &str,
@@ -80,7 +94,7 @@ pub(crate) fn bad_field(
         source_name: source.to_owned(),
         line: row.line,
         field: field.to_owned(),
-        value: value.to_owned(),
+        value: clip_echo(value),
         problem: problem.to_owned(),
     }
 }
@@ -106,5 +120,27 @@ pub(crate) fn optional_number(
             "is not a finite number",
         )),
         Err(_) => Err(bad_field(source, row, field, text, "is not a number")),
+    }
+}
+
+/// As [`optional_number`], and a value must lie within `-bound..=bound` (`what` says why,
+/// for the message, e.g. "an ENSO anomaly within +/-10 C").
+pub(crate) fn bounded_number(
+    source: &str,
+    row: &Row,
+    field: &str,
+    text: &str,
+    bound: f64,
+    what: &str,
+) -> Result<Option<f64>, DriverParseError> {
+    match optional_number(source, row, field, text)? {
+        Some(x) if !(-bound..=bound).contains(&x) => Err(bad_field(
+            source,
+            row,
+            field,
+            text,
+            &format!("is outside the plausible range: expected {what}"),
+        )),
+        other => Ok(other),
     }
 }

@@ -12,13 +12,18 @@ use std::io::BufRead;
 
 use serde::{Deserialize, Serialize};
 
-use super::csv_rows::{bad_field, expect_header, optional_number, read_rows};
+use super::csv_rows::{bad_field, bounded_number, expect_header, read_rows};
 use super::{CountUnit, Driver, DriverParseError, Shortfall, ShortfallReason};
 use crate::season::Season;
 
 /// The anomaly (deg C) at or beyond which a season is El Nino (>= +0.5) or La Nina (<= -0.5);
 /// common practice, boundaries inclusive.
 pub const ENSO_CATEGORY_THRESHOLD_C: f64 = 0.5;
+
+/// The largest plausible monthly anomaly magnitude, deg C: observed Nino-3.4 anomalies stay
+/// within about +/-3.5 C (common practice, from memory), so +/-10 C only catches typing and
+/// unit errors.
+pub const MAX_ENSO_ANOMALY_C: f64 = 10.0;
 
 /// ENSO reporting category of a seasonal anomaly.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
@@ -136,7 +141,14 @@ impl EnsoSeries {
                     value: text.clone(),
                 });
             }
-            if let Some(anomaly) = optional_number(source, row, "anomaly", &row.fields[1])? {
+            if let Some(anomaly) = bounded_number(
+                source,
+                row,
+                "anomaly",
+                &row.fields[1],
+                MAX_ENSO_ANOMALY_C,
+                "an anomaly within +/-10 C",
+            )? {
                 months.insert(key, anomaly);
             }
         }

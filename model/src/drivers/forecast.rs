@@ -155,6 +155,16 @@ impl EnsoForecast {
         };
         let season =
             Season::parse(&raw.season, specs).map_err(|e| invalid("season", e.to_string()))?;
+        if season.label() != raw.season {
+            return Err(invalid(
+                "season",
+                format!(
+                    "{:?} must be written exactly as {}",
+                    super::clip_echo(&raw.season),
+                    season.label()
+                ),
+            ));
+        }
         let issued = NaiveDate::parse_from_str(&raw.issued, "%Y-%m-%d").map_err(|_| {
             invalid(
                 "issued",
@@ -273,6 +283,16 @@ fn validate_models(
             return Err(invalid(
                 &format!("models[{i}].members[{j}]"),
                 "is not a finite number".to_owned(),
+            ));
+        }
+        const MAX: f64 = super::enso::MAX_ENSO_ANOMALY_C;
+        if let Some(j) = m.members.iter().position(|x| !(-MAX..=MAX).contains(x)) {
+            return Err(invalid(
+                &format!("models[{i}].members[{j}]"),
+                format!(
+                    "{} is outside the plausible range: expected an anomaly within +/-10 C",
+                    m.members[j]
+                ),
             ));
         }
         out.push(ModelMembers {

@@ -15,12 +15,17 @@ use std::io::BufRead;
 use chrono::NaiveDate;
 use serde::Serialize;
 
-use super::csv_rows::{bad_field, expect_header, optional_number, read_rows};
+use super::csv_rows::{bad_field, bounded_number, expect_header, read_rows};
 use super::{CountUnit, Driver, DriverParseError, Shortfall, ShortfallReason, required_days};
 use crate::season::Season;
 
 /// Days with amplitude at least this are active (Wheeler and Hendon 2004).
 pub const ACTIVE_AMPLITUDE: f64 = 1.0;
+
+/// The largest plausible RMM component magnitude: the components are normalised to unit
+/// variance (Wheeler and Hendon 2004) and observed amplitudes stay below about 5, so +/-10
+/// only catches typing and unit errors.
+pub const MAX_RMM_COMPONENT: f64 = 10.0;
 
 /// One day's MJO state.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -144,8 +149,18 @@ impl RmmSeries {
                     value: text.clone(),
                 });
             }
-            let rmm1 = optional_number(source, row, "rmm1", &row.fields[1])?;
-            let rmm2 = optional_number(source, row, "rmm2", &row.fields[2])?;
+            let component = |field: &str, text: &str| {
+                bounded_number(
+                    source,
+                    row,
+                    field,
+                    text,
+                    MAX_RMM_COMPONENT,
+                    "an RMM component within +/-10",
+                )
+            };
+            let rmm1 = component("rmm1", &row.fields[1])?;
+            let rmm2 = component("rmm2", &row.fields[2])?;
             if let (Some(a), Some(b)) = (rmm1, rmm2) {
                 days.insert(date, (a, b));
             }

@@ -33,6 +33,7 @@ pub mod wind;
 
 mod csv_rows;
 
+pub use csv_rows::{MAX_ECHO_CHARS, clip_echo};
 pub use enso::{EnsoCategory, EnsoSeries, EnsoTiming, EnsoValue};
 pub use forecast::{
     CategoryProbabilities, EnsoForecast, ForecastContent, ForecastError, ModelMembers, PastSeason,

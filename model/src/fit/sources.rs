@@ -81,13 +81,19 @@ pub enum FilesNeeded {
 /// A gauge's file that could not be read.
 #[derive(Debug, thiserror::Error)]
 pub enum SourceError {
-    /// A file could not be opened or read.
-    #[error("{}: {error}", path.display())]
+    /// A file could not be opened or read. The cause is in the message once (it is not also
+    /// a `source`, which error reports would print a second time).
+    #[error(
+        "{}{}: cannot open: {error}",
+        path.display(),
+        key.map(|k| format!(" (TOML key {k})")).unwrap_or_default()
+    )]
     Io {
         /// The file.
         path: PathBuf,
+        /// The gauge TOML key that names it (`None` for the TOML itself).
+        key: Option<&'static str>,
         /// The I/O error.
-        #[source]
         error: std::io::Error,
     },
     /// The TOML does not validate (it names the files to read).
@@ -95,9 +101,10 @@ pub enum SourceError {
     Gauge(#[from] GaugeError),
 }
 
-fn read_bytes(path: &Path) -> Result<ByteSource, SourceError> {
+fn read_bytes(path: &Path, key: &'static str) -> Result<ByteSource, SourceError> {
     let bytes = std::fs::read(path).map_err(|error| SourceError::Io {
         path: path.to_owned(),
+        key: Some(key),
         error,
     })?;
     Ok(ByteSource {
@@ -111,6 +118,7 @@ impl GaugeSources {
     pub fn read(toml_path: &Path, needed: FilesNeeded) -> Result<Self, SourceError> {
         let text = std::fs::read_to_string(toml_path).map_err(|error| SourceError::Io {
             path: toml_path.to_owned(),
+            key: None,
             error,
         })?;
         let name = toml_path.file_name().map_or_else(
@@ -120,16 +128,16 @@ impl GaugeSources {
         let base_dir = toml_path.parent().unwrap_or(Path::new(""));
         let toml = GaugeToml::parse(TextSource { name, text }, base_dir)?;
         let files = toml.config();
-        let read = |path: &Option<PathBuf>| match (needed, path) {
-            (FilesNeeded::All, Some(p)) => read_bytes(p).map(Some),
+        let read = |path: &Option<PathBuf>, key: &'static str| match (needed, path) {
+            (FilesNeeded::All, Some(p)) => read_bytes(p, key).map(Some),
             _ => Ok(None),
         };
         Ok(Self {
-            levels: read_bytes(&files.levels.file)?,
-            enso: read(&files.drivers.enso)?,
-            rmm: read(&files.drivers.rmm)?,
-            wind: read(&files.drivers.wind)?,
-            enso_forecast: read(&files.drivers.enso_forecast)?,
+            levels: read_bytes(&files.levels.file, "levels.file")?,
+            enso: read(&files.drivers.enso, "drivers.enso")?,
+            rmm: read(&files.drivers.rmm, "drivers.rmm")?,
+            wind: read(&files.drivers.wind, "drivers.wind")?,
+            enso_forecast: read(&files.drivers.enso_forecast, "drivers.enso_forecast")?,
             toml,
         })
     }

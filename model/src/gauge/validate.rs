@@ -168,18 +168,21 @@ impl TomlValidator<'_> {
             && raw
                 .id
                 .bytes()
-                .all(|b| b.is_ascii_lowercase() || b.is_ascii_digit() || b == b'-');
+                .all(|b| b.is_ascii_lowercase() || b.is_ascii_digit() || b == b'-')
+            && raw.id.bytes().any(|b| b.is_ascii_alphanumeric());
         if !id_ok {
             return Err(self.invalid(
                 "id",
-                "1 to 64 lowercase letters, digits or '-'",
-                format!("{:?}", raw.id),
+                "1 to 64 lowercase letters, digits or '-', at least one letter or digit",
+                format!("{:?}", crate::drivers::clip_echo(&raw.id)),
             ));
         }
-        if !raw.flood_threshold_m.is_finite() {
+        if !(-crate::ingest::MAX_LEVEL_M..=crate::ingest::MAX_LEVEL_M)
+            .contains(&raw.flood_threshold_m)
+        {
             return Err(self.invalid(
                 "flood_threshold_m",
-                "a finite number of metres",
+                "a number of metres within +/-100 m of the datum",
                 raw.flood_threshold_m,
             ));
         }

@@ -5,8 +5,8 @@
 
 use chrono::NaiveDate;
 
-use super::predict::TideModel;
 use super::TideError;
+use super::predict::TideModel;
 use crate::season::Season;
 
 /// Step of the fine prediction that locates each day's higher high water, seconds.

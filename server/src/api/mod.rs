@@ -21,4 +21,7 @@ pub use outlook::{
 };
 pub use problem::Problem;
 pub use skill::{EngineSkill, Hindcast, HindcastCase, ScoreRow, Skill, Verdict};
-pub use upload::{EnsoForecast, EnsoForecastModel, EnsoProbabilities, UploadReceipt};
+pub use upload::{
+    EnsoForecast, EnsoForecastModel, EnsoProbabilities, InputVersion, SeriesEntry, SeriesList,
+    UploadReceipt, VersionList,
+};

@@ -17,6 +17,64 @@ pub struct UploadReceipt {
     pub content_hash: String,
     /// What the service does next, in plain words.
     pub note: String,
+    /// The stored version's id (`null` when nothing new was stored).
+    pub version: Option<i64>,
+    /// Water levels: readings at times the record did not have (else `null`).
+    pub added: Option<u64>,
+    /// Water levels: readings that replaced a stored one with a different value (else `null`).
+    pub changed: Option<u64>,
+    /// Water levels: readings equal to the stored ones (else `null`).
+    pub unchanged: Option<u64>,
+}
+
+/// One stored version of an input.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct InputVersion {
+    /// Version id (increasing with time).
+    pub version: i64,
+    /// Upload time.
+    pub uploaded_at: String,
+    /// Data rows (0 for documents).
+    pub rows: u64,
+    /// Strong ETag of the content.
+    pub content_hash: String,
+    /// Whether the serving model was fitted on it.
+    pub serving: bool,
+}
+
+/// Every stored version of a gauge's inputs.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct VersionList {
+    /// The gauge.
+    pub gauge: String,
+    /// Whether the gauge is retired (hidden from the lists).
+    pub retired: bool,
+    /// Versions of its TOML, oldest first.
+    pub toml: Vec<InputVersion>,
+    /// Versions of its water-level record, oldest first.
+    pub levels: Vec<InputVersion>,
+    /// The driver series its TOML chooses, with their versions.
+    pub series: Vec<SeriesEntry>,
+}
+
+/// A named driver series.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SeriesEntry {
+    /// `enso`, `rmm`, `wind` or `enso_forecast`.
+    pub kind: String,
+    /// Its name (a gauge TOML chooses it by file stem).
+    pub name: String,
+    /// The gauges whose TOML chooses it.
+    pub used_by: Vec<String>,
+    /// Its versions, oldest first (a gauge's next refit uses the newest).
+    pub versions: Vec<InputVersion>,
+}
+
+/// Every stored driver series.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SeriesList {
+    /// The series, by kind and name.
+    pub series: Vec<SeriesEntry>,
 }
 
 /// An ENSO forecast for a target season: ensemble members per model, or category

@@ -82,9 +82,14 @@ async fn serve(config: ServeConfig) -> anyhow::Result<()> {
             Err(err) => tracing::error!(error = %err, "catalog load task lost"),
         }
     });
-    crate::serve_router(listener, routes::router(state, &options), shutdown_signal())
-        .await
-        .context("serving")?;
+    crate::connections::serve(
+        listener,
+        routes::router(state, &options),
+        config.connections.clone(),
+        shutdown_signal(),
+    )
+    .await
+    .context("serving")?;
     tracing::info!("stopped");
     Ok(())
 }

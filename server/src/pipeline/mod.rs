@@ -198,7 +198,7 @@ fn season_row_with_drivers(
 }
 
 /// Version of a fit: this build's version and a hash of every input.
-fn model_version(inputs: &GaugeInputs) -> String {
+pub fn model_version(inputs: &GaugeInputs) -> String {
     let mut parts: Vec<String> = vec![etag_of(inputs.toml.source().text.as_bytes())];
     parts.extend(inputs.levels.iter().map(|l| l.content_hash.clone()));
     for series in [&inputs.enso, &inputs.rmm, &inputs.wind] {

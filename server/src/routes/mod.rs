@@ -15,7 +15,7 @@ use tower_http::timeout::TimeoutLayer;
 use tower_http::trace::TraceLayer;
 
 use crate::error::AppError;
-use crate::middleware::{etag_and_cache, problem_shape, require_token};
+use crate::middleware::{etag_and_cache, problem_shape, request_limits, require_token};
 use crate::state::AppState;
 
 /// The largest JSON or TOML body.
@@ -45,21 +45,35 @@ impl Default for HttpOptions {
 pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
     let upload_limit = DefaultBodyLimit::max(MAX_UPLOAD_BYTES);
     let writes = Router::new()
-        .route("/api/v1/gauges/{id}", put(write::put_gauge))
+        .route(
+            "/api/v1/gauges/{id}",
+            put(write::put_gauge).delete(write::retire_gauge),
+        )
         .route(
             "/api/v1/gauges/{id}/levels",
             put(write::put_levels).layer(upload_limit),
         )
         .route(
-            "/api/v1/drivers/{kind}",
-            put(write::put_driver).layer(upload_limit),
+            "/api/v1/drivers/{kind}/{name}",
+            put(write::put_series).layer(upload_limit),
         )
         .route(
-            "/api/v1/drivers/wind/{gauge}",
-            put(write::put_wind).layer(upload_limit),
+            "/api/v1/forecasts/enso/{name}",
+            put(write::put_enso_forecast),
         )
-        .route("/api/v1/forecasts/enso", put(write::put_enso_forecast))
         .route("/api/v1/gauges/{id}/refit", post(write::refit))
+        .route(
+            "/api/v1/drivers/{kind}/{name}/versions/{version}/restore",
+            post(write::restore_series),
+        )
+        .route(
+            "/api/v1/gauges/{id}/versions/{input}/{version}/restore",
+            post(write::restore_version),
+        )
+        .route(
+            "/api/v1/gauges/{id}/versions/prune",
+            post(write::prune_versions),
+        )
         .route_layer(from_fn_with_state(Arc::clone(&state), require_token));
     let reads = Router::new()
         .route("/api/v1/openapi.json", get(read::openapi))
@@ -71,6 +85,8 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
         .route("/api/v1/gauges/{id}/hindcast", get(read::hindcast))
         .route("/api/v1/outlooks", get(read::outlooks))
         .route("/api/v1/outlooks/issued", get(read::issued))
+        .route("/api/v1/gauges/{id}/versions", get(read::versions))
+        .route("/api/v1/drivers", get(read::series))
         .layer(from_fn_with_state(Arc::clone(&state), etag_and_cache));
     let health = Router::new()
         .route("/healthz", get(health::healthz))
@@ -86,6 +102,7 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
             StatusCode::SERVICE_UNAVAILABLE,
             options.request_timeout,
         ))
+        .layer(from_fn(request_limits))
         .layer(from_fn(problem_shape))
         .with_state(state);
     if let Some(cors) = crate::cors::layer(&options.cors_origins) {

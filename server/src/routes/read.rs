@@ -23,11 +23,23 @@ use crate::store;
 /// Most issued outlooks one request lists.
 const MAX_ISSUED: u32 = 500;
 
+/// A gauge as served; before the startup load has finished, a gauge not loaded yet is "not
+/// ready", not "not found" (each gauge is served as soon as it is loaded).
 fn gauge_entry(state: &AppState, id: &str) -> Result<Arc<GaugeEntry>, AppError> {
-    state
-        .catalog
-        .get(id)
-        .ok_or_else(|| AppError::NotFound(format!("no gauge named {id:?}")))
+    match state.catalog.get(id) {
+        Some(entry) => Ok(entry),
+        None if !state.catalog.is_loaded() => Err(AppError::NotReady),
+        None => Err(AppError::NotFound(format!("no gauge named {id:?}"))),
+    }
+}
+
+/// Lists of all gauges are answered only once every gauge is loaded, never partially.
+fn require_loaded(state: &AppState) -> Result<(), AppError> {
+    if state.catalog.is_loaded() {
+        Ok(())
+    } else {
+        Err(AppError::NotReady)
+    }
 }
 
 fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
@@ -55,17 +67,19 @@ pub async fn openapi() -> Response {
 }
 
 /// `GET /api/v1/gauges`.
-pub async fn gauges(State(state): State<Arc<AppState>>) -> Json<api::GaugeList> {
-    Json(api::GaugeList {
+pub async fn gauges(State(state): State<Arc<AppState>>) -> Result<Json<api::GaugeList>, AppError> {
+    require_loaded(&state)?;
+    Ok(Json(api::GaugeList {
         gauges: state.catalog.list().iter().map(|e| e.to_wire()).collect(),
-    })
+    }))
 }
 
 /// `GET /api/v1/gauges.geojson`.
-pub async fn gauges_geojson(State(state): State<Arc<AppState>>) -> Response {
+pub async fn gauges_geojson(State(state): State<Arc<AppState>>) -> Result<Response, AppError> {
+    require_loaded(&state)?;
     let gauges: Vec<api::Gauge> = state.catalog.list().iter().map(|e| e.to_wire()).collect();
     let body = serde_json::to_vec(&api::FeatureCollection::of(&gauges)).unwrap_or_default();
-    ([(header::CONTENT_TYPE, "application/geo+json")], body).into_response()
+    Ok(([(header::CONTENT_TYPE, "application/geo+json")], body).into_response())
 }
 
 /// `GET /api/v1/gauges/{id}`.
@@ -224,8 +238,44 @@ pub async fn outlook(
     }
 }
 
-/// Computes the outlook of a season the fit did not issue, off the runtime (one pipeline run
-/// at a time), and keeps it with the serving model.
+/// Whether the record can support an outlook of `target`: a past season with observed days,
+/// or the next season of its name after the record.
+fn supported(entry: &GaugeEntry, target: &tidetally_model::season::Season) -> Result<(), String> {
+    let Ok(history) = &entry.history else {
+        return Err("the gauge has no season table".into());
+    };
+    let label = target.label();
+    let name = target.spec().name();
+    let seasons = &history.value.seasons;
+    if seasons
+        .iter()
+        .any(|r| r.season == label && r.observed_days > 0)
+    {
+        return Ok(());
+    }
+    let last_of_name = seasons
+        .iter()
+        .filter_map(|r| query::parse_season(&r.season, &entry.meta.seasons).ok())
+        .filter(|s| s.spec().name() == name)
+        .map(|s| s.year())
+        .max();
+    match last_of_name {
+        Some(year) if target.year() == year + 1 => Ok(()),
+        Some(year) => Err(format!(
+            "gauge {}'s record supports outlooks of past seasons with data and of the next              season ({}-{name}), not {label}",
+            entry.meta.id,
+            year + 1
+        )),
+        None => Err(format!(
+            "gauge {}'s record has no {name} season",
+            entry.meta.id
+        )),
+    }
+}
+
+/// Computes the outlook of a season the fit did not issue, off the runtime, in the on-demand
+/// pool (its own permits and a bounded queue: a full queue answers 503 at once), from the
+/// inputs the serving model was fitted on, and keeps it with the serving model.
 async fn outlook_on_demand(
     state: &Arc<AppState>,
     entry: &GaugeEntry,
@@ -233,20 +283,18 @@ async fn outlook_on_demand(
     target: Season,
 ) -> Result<OnDemand, AppError> {
     let label = target.label();
-    let _permit = state
-        .pipeline_permits
-        .acquire()
-        .await
-        .map_err(|_| AppError::Internal("pipeline permits closed".into()))?;
+    supported(entry, &target).map_err(AppError::NotFound)?;
+    let _permit = state.on_demand.enter().await?;
     if let Some(cached) = model.cached(&label) {
         return Ok(cached);
     }
     let st = Arc::clone(state);
     let id = entry.meta.id.clone();
+    let at = entry.inputs.clone();
     tokio::task::spawn_blocking(move || {
-        let inputs = st
+        let (inputs, _) = st
             .store
-            .call_blocking(|c| state::load_inputs(c, &id))?
+            .call_blocking(|c| state::load_inputs_at(c, &id, Some(&at)))?
             .ok_or_else(|| AppError::NotFound(format!("no gauge named {id:?}")))?;
         let outcome = pipeline::outlook_for_season(&inputs, &model.results, &target);
         Ok(model.keep(&label, outcome))
@@ -290,6 +338,7 @@ pub async fn outlooks(
     query: Result<Query<OutlooksQuery>, QueryRejection>,
 ) -> Result<Json<api::OutlookSet>, AppError> {
     let query = query_of(query)?;
+    require_loaded(&state)?;
     let text = query.season.ok_or_else(|| {
         AppError::BadRequest("the season parameter is required, e.g. ?season=2026-DJF".into())
     })?;
@@ -382,6 +431,115 @@ pub async fn issued(
         });
     }
     Ok(Json(api::IssuedOutlookList { issued }))
+}
+
+fn wire_versions(
+    versions: Vec<store::VersionInfo>,
+    serving: Option<i64>,
+) -> Vec<api::InputVersion> {
+    versions
+        .into_iter()
+        .map(|v| api::InputVersion {
+            serving: serving == Some(v.version),
+            version: v.version,
+            uploaded_at: v.uploaded_at,
+            rows: v.rows,
+            content_hash: v.content_hash,
+        })
+        .collect()
+}
+
+/// `GET /api/v1/gauges/{id}/versions`: every stored version of the gauge's inputs (retired
+/// gauges included), marking those the serving model was fitted on.
+pub async fn versions(
+    State(state): State<Arc<AppState>>,
+    Path(id): Path<String>,
+) -> Result<Json<api::VersionList>, AppError> {
+    let serving = state
+        .catalog
+        .get(&id)
+        .map(|e| e.inputs.clone())
+        .unwrap_or_default();
+    let key = id.clone();
+    let list = state
+        .store
+        .call(move |c| {
+            let Some(gauge) = store::get_gauge(c, &key)? else {
+                return Ok(None);
+            };
+            let retired = !store::list_gauges(c)?.iter().any(|g| g.id == key);
+            let toml = store::list_gauge_versions(c, &key)?;
+            let levels = store::list_levels_versions(c, &key)?;
+            let mut series = Vec::new();
+            if let Ok(meta) = crate::upload::parse_gauge_toml(&gauge.toml) {
+                for (k, _, _) in state::chosen_series(&meta) {
+                    let versions = store::list_series(c)?
+                        .into_iter()
+                        .find(|s| s.key == k)
+                        .map(|s| s.versions)
+                        .unwrap_or_default();
+                    series.push((k, versions));
+                }
+            }
+            Ok(Some((retired, toml, levels, series)))
+        })
+        .await?;
+    let Some((retired, toml, levels, series)) = list else {
+        return Err(AppError::NotFound(format!("no gauge named {id:?}")));
+    };
+    Ok(Json(api::VersionList {
+        retired,
+        toml: wire_versions(toml, serving.gauge),
+        levels: wire_versions(levels, serving.levels),
+        series: series
+            .into_iter()
+            .map(|(k, versions)| api::SeriesEntry {
+                kind: k.kind.as_str().to_owned(),
+                versions: wire_versions(versions, serving.series.get(&k.describe()).copied()),
+                name: k.name,
+                used_by: vec![id.clone()],
+            })
+            .collect(),
+        gauge: id,
+    }))
+}
+
+/// `GET /api/v1/drivers`: every stored driver series with its versions and the gauges whose
+/// TOML chooses it.
+pub async fn series(State(state): State<Arc<AppState>>) -> Result<Json<api::SeriesList>, AppError> {
+    let (all, gauges) = state
+        .store
+        .call(|c| Ok((store::list_series(c)?, store::list_gauges(c)?)))
+        .await?;
+    let chosen: Vec<(String, Vec<store::SeriesKey>)> = gauges
+        .iter()
+        .filter_map(|g| {
+            let meta = crate::upload::parse_gauge_toml(&g.toml).ok()?;
+            let keys = state::chosen_series(&meta)
+                .into_iter()
+                .map(|(k, _, _)| k)
+                .collect();
+            Some((g.id.clone(), keys))
+        })
+        .collect();
+    let series = all
+        .into_iter()
+        .map(|s| {
+            let used_by = chosen
+                .iter()
+                .filter(|(_, keys)| keys.contains(&s.key))
+                .map(|(id, _)| id.clone())
+                .collect();
+            let serving = None;
+            api::SeriesEntry {
+                kind: s.key.kind.as_str().to_owned(),
+                name: s.key.name,
+                used_by,
+                versions: wire_versions(s.versions, serving),
+            }
+        })
+        .collect();
+    Ok(Json(api::SeriesList { series }))
 }
 
 #[cfg(test)]

@@ -28,7 +28,7 @@ pub fn put_gauge(conn: &mut Connection, gauge: &StoredGaugeRow) -> Result<(), St
         "INSERT INTO gauges (id, toml, name, latitude, longitude, updated_at)
          VALUES (?1, ?2, ?3, ?4, ?5, ?6)
          ON CONFLICT (id) DO UPDATE SET toml = ?2, name = ?3, latitude = ?4, longitude = ?5,
-                                        updated_at = ?6",
+                                        updated_at = ?6, retired_at = NULL",
         params![
             gauge.id,
             gauge.toml,
@@ -38,17 +38,12 @@ pub fn put_gauge(conn: &mut Connection, gauge: &StoredGaugeRow) -> Result<(), St
             gauge.updated_at
         ],
     )?;
+    tx.execute(
+        "INSERT INTO gauge_versions (gauge_id, toml, uploaded_at) VALUES (?1, ?2, ?3)",
+        params![gauge.id, gauge.toml, gauge.updated_at],
+    )?;
     tx.commit()?;
     Ok(())
-}
-
-/// Deletes a gauge and everything stored for it (not its issued outlooks, which are history).
-pub fn delete_gauge(conn: &mut Connection, id: &str) -> Result<bool, StoreError> {
-    let tx = conn.transaction()?;
-    tx.execute("DELETE FROM driver_series WHERE gauge_id = ?1", [id])?;
-    let n = tx.execute("DELETE FROM gauges WHERE id = ?1", [id])?;
-    tx.commit()?;
-    Ok(n > 0)
 }
 
 fn from_row(row: &rusqlite::Row<'_>) -> rusqlite::Result<StoredGaugeRow> {
@@ -62,16 +57,17 @@ fn from_row(row: &rusqlite::Row<'_>) -> rusqlite::Result<StoredGaugeRow> {
     })
 }
 
-/// All gauges, ordered by id.
+/// All gauges not retired, ordered by id.
 pub fn list_gauges(conn: &Connection) -> Result<Vec<StoredGaugeRow>, StoreError> {
     let mut stmt = conn.prepare(
-        "SELECT id, toml, name, latitude, longitude, updated_at FROM gauges ORDER BY id",
+        "SELECT id, toml, name, latitude, longitude, updated_at FROM gauges
+         WHERE retired_at IS NULL ORDER BY id",
     )?;
     let rows = stmt.query_map([], from_row)?;
     Ok(rows.collect::<Result<Vec<_>, _>>()?)
 }
 
-/// One gauge.
+/// One gauge, retired or not.
 pub fn get_gauge(conn: &Connection, id: &str) -> Result<Option<StoredGaugeRow>, StoreError> {
     Ok(conn
         .query_row(

@@ -17,6 +17,7 @@ mod models;
 mod outlooks;
 mod schema;
 mod series;
+mod versions;
 
 use std::path::Path;
 use std::sync::{Arc, Mutex};
@@ -24,14 +25,17 @@ use std::sync::{Arc, Mutex};
 use rusqlite::Connection;
 
 pub use blobs::{gunzip_all, gzip};
-pub use gauges::{StoredGaugeRow, delete_gauge, get_gauge, list_gauges, put_gauge};
+pub use gauges::{StoredGaugeRow, get_gauge, list_gauges, put_gauge};
 pub use models::{FittedModelRecord, latest_model, put_model};
 pub use outlooks::{IssuedFilter, IssuedRecord, list_issued, record_issued};
 pub use schema::SCHEMA_VERSION;
 pub use series::{
-    LevelsRecord, SeriesKey, SeriesRecord, get_forecasts, get_levels, get_series, put_forecast,
-    put_levels, put_series,
+    LevelsRecord, SeriesKey, SeriesKind, SeriesRecord, SeriesSummary, VersionInfo, get_levels,
+    get_levels_at, get_series, get_series_at_most, latest_levels_version, list_levels_versions,
+    list_series, prune_gauge_versions, put_levels, put_series, series_name, series_versions,
+    valid_series_name,
 };
+pub use versions::{get_gauge_version, latest_gauge_version, list_gauge_versions, retire_gauge};
 
 /// Errors of the store.
 #[derive(Debug, thiserror::Error)]
@@ -80,6 +84,11 @@ impl Store {
     /// An in-memory store (tests, `--db :memory:`).
     pub fn open_in_memory() -> Result<Self, StoreError> {
         Self::init(Connection::open_in_memory()?)
+    }
+
+    /// A store over an open connection, migrated (tests of migrations).
+    pub fn from_connection(conn: Connection) -> Result<Self, StoreError> {
+        Self::init(conn)
     }
 
     fn init(mut conn: Connection) -> Result<Self, StoreError> {

@@ -28,6 +28,16 @@ pub struct IssuedRecord {
 /// version keeps its first issue time. Returns how many were new.
 pub fn record_issued(conn: &mut Connection, issued: &[IssuedRecord]) -> Result<usize, StoreError> {
     let tx = conn.transaction()?;
+    let new = insert_issued(&tx, issued)?;
+    tx.commit()?;
+    Ok(new)
+}
+
+/// The inserts of [`record_issued`], inside the caller's transaction.
+pub(super) fn insert_issued(
+    tx: &rusqlite::Transaction<'_>,
+    issued: &[IssuedRecord],
+) -> Result<usize, StoreError> {
     let mut new = 0;
     {
         let mut insert = tx.prepare(
@@ -46,7 +56,6 @@ pub fn record_issued(conn: &mut Connection, issued: &[IssuedRecord]) -> Result<u
             ])?;
         }
     }
-    tx.commit()?;
     Ok(new)
 }
 

@@ -1,5 +1,7 @@
-//! Uploaded data: water-level records (gzip chunks per gauge), driver series (per kind, wind
-//! per gauge) and ENSO forecasts (per target season).
+//! Uploaded data, every upload kept as a version: water-level records (gzip chunks per
+//! version) and named driver series (ENSO, RMM, wind and ENSO forecasts, each a kind and a
+//! name, versions newest last). A gauge's TOML chooses series by name
+//! ([`series_name`]); nothing is shared unless gauges name the same series.
 
 use rusqlite::{Connection, OptionalExtension, params};
 
@@ -26,9 +28,9 @@ pub struct LevelsRecord {
     /// Upload time (RFC 3339).
     pub uploaded_at: String,
 }
-
-/// Replaces a gauge's water-level record.
-pub fn put_levels(conn: &mut Connection, levels: &LevelsRecord) -> Result<(), StoreError> {
+/// Stores a new version of a gauge's water-level record (the previous versions are kept);
+/// returns the version id.
+pub fn put_levels(conn: &mut Connection, levels: &LevelsRecord) -> Result<i64, StoreError> {
     put_levels_chunked(conn, levels, LEVEL_CHUNK_BYTES, None)
 }
 
@@ -39,18 +41,14 @@ fn put_levels_chunked(
     levels: &LevelsRecord,
     chunk_bytes: usize,
     fail_after: Option<usize>,
-) -> Result<(), StoreError> {
+) -> Result<i64, StoreError> {
     let compressed = gzip(&levels.csv);
     let chunks: Vec<&[u8]> = compressed.chunks(chunk_bytes).collect();
     let tx = conn.transaction()?;
     tx.execute(
-        "DELETE FROM level_uploads WHERE gauge_id = ?1",
-        [&levels.gauge_id],
-    )?;
-    tx.execute(
-        "INSERT INTO level_uploads (gauge_id, bytes, readings, first_time, last_time,
-                                    content_hash, chunks, uploaded_at)
-         VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
+        "INSERT INTO level_versions (gauge_id, bytes, readings, days, first_time, last_time,
+                                     content_hash, chunks, uploaded_at)
+         VALUES (?1, ?2, ?3, -1, ?4, ?5, ?6, ?7, ?8)",
         params![
             levels.gauge_id,
             levels.csv.len() as i64,
@@ -62,27 +60,53 @@ fn put_levels_chunked(
             levels.uploaded_at
         ],
     )?;
+    let version = tx.last_insert_rowid();
     {
-        let mut insert =
-            tx.prepare("INSERT INTO level_chunks (gauge_id, seq, gzip) VALUES (?1, ?2, ?3)")?;
+        let mut insert = tx.prepare(
+            "INSERT INTO level_version_chunks (version_id, seq, gzip) VALUES (?1, ?2, ?3)",
+        )?;
         for (seq, chunk) in chunks.iter().enumerate() {
             if fail_after == Some(seq) {
                 return Err(StoreError::Task("injected failure mid-upload".into()));
             }
-            insert.execute(params![levels.gauge_id, seq as i64, chunk])?;
+            insert.execute(params![version, seq as i64, chunk])?;
         }
     }
     tx.commit()?;
-    Ok(())
+    Ok(version)
 }
 
-/// A gauge's water-level record, if one was uploaded.
+/// The newest version id of a gauge's water-level record.
+pub fn latest_levels_version(conn: &Connection, gauge_id: &str) -> Result<Option<i64>, StoreError> {
+    Ok(conn
+        .query_row(
+            "SELECT MAX(id) FROM level_versions WHERE gauge_id = ?1",
+            [gauge_id],
+            |row| row.get::<_, Option<i64>>(0),
+        )
+        .optional()?
+        .flatten())
+}
+
+/// A gauge's newest water-level record, if one was uploaded.
 pub fn get_levels(conn: &Connection, gauge_id: &str) -> Result<Option<LevelsRecord>, StoreError> {
+    match latest_levels_version(conn, gauge_id)? {
+        Some(version) => get_levels_at(conn, gauge_id, version),
+        None => Ok(None),
+    }
+}
+
+/// One stored version of a gauge's water-level record.
+pub fn get_levels_at(
+    conn: &Connection,
+    gauge_id: &str,
+    version: i64,
+) -> Result<Option<LevelsRecord>, StoreError> {
     let head = conn
         .query_row(
             "SELECT readings, first_time, last_time, content_hash, chunks, uploaded_at
-             FROM level_uploads WHERE gauge_id = ?1",
-            [gauge_id],
+             FROM level_versions WHERE gauge_id = ?1 AND id = ?2",
+            params![gauge_id, version],
             |row| {
                 Ok((
                     row.get::<_, i64>(0)?,
@@ -99,14 +123,14 @@ pub fn get_levels(conn: &Connection, gauge_id: &str) -> Result<Option<LevelsReco
         return Ok(None);
     };
     let mut stmt =
-        conn.prepare("SELECT gzip FROM level_chunks WHERE gauge_id = ?1 ORDER BY seq")?;
+        conn.prepare("SELECT gzip FROM level_version_chunks WHERE version_id = ?1 ORDER BY seq")?;
     let mut compressed = Vec::new();
     let mut count = 0;
-    for chunk in stmt.query_map([gauge_id], |row| row.get::<_, Vec<u8>>(0))? {
+    for chunk in stmt.query_map([version], |row| row.get::<_, Vec<u8>>(0))? {
         compressed.extend_from_slice(&chunk?);
         count += 1;
     }
-    let what = format!("water levels of gauge {gauge_id}");
+    let what = format!("water levels of gauge {gauge_id} (version {version})");
     if count != chunks {
         return Err(StoreError::Corrupt {
             what,
@@ -124,41 +148,153 @@ pub fn get_levels(conn: &Connection, gauge_id: &str) -> Result<Option<LevelsReco
     }))
 }
 
-/// Which driver series: ENSO and RMM are shared, wind belongs to one gauge.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub enum SeriesKey {
-    /// Monthly ENSO index.
+/// One stored version of an input, as listed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct VersionInfo {
+    /// Version id (store-wide, increasing with time).
+    pub version: i64,
+    /// Upload time (RFC 3339).
+    pub uploaded_at: String,
+    /// Data rows (0 for a TOML or a forecast).
+    pub rows: u64,
+    /// Strong hash of the content.
+    pub content_hash: String,
+}
+
+/// Every stored version of a gauge's water-level record, oldest first.
+pub fn list_levels_versions(
+    conn: &Connection,
+    gauge_id: &str,
+) -> Result<Vec<VersionInfo>, StoreError> {
+    let mut stmt = conn.prepare(
+        "SELECT id, uploaded_at, readings, content_hash FROM level_versions
+         WHERE gauge_id = ?1 ORDER BY id",
+    )?;
+    let rows = stmt.query_map([gauge_id], |row| {
+        Ok(VersionInfo {
+            version: row.get(0)?,
+            uploaded_at: row.get(1)?,
+            rows: row.get::<_, i64>(2)? as u64,
+            content_hash: row.get(3)?,
+        })
+    })?;
+    Ok(rows.collect::<Result<Vec<_>, _>>()?)
+}
+
+/// Deletes all but the newest `keep` versions of a gauge's level record and TOML (and never
+/// the versions listed in `pinned`, e.g. those the serving model was fitted on). Returns how
+/// many versions were deleted.
+pub fn prune_gauge_versions(
+    conn: &mut Connection,
+    gauge_id: &str,
+    keep: usize,
+    pinned: &[i64],
+) -> Result<usize, StoreError> {
+    let tx = conn.transaction()?;
+    let mut deleted = 0;
+    for table in ["level_versions", "gauge_versions"] {
+        let ids: Vec<i64> = {
+            let mut stmt = tx.prepare(&format!(
+                "SELECT id FROM {table} WHERE gauge_id = ?1 ORDER BY id DESC"
+            ))?;
+            let ids = stmt.query_map([gauge_id], |row| row.get(0))?;
+            ids.collect::<Result<Vec<_>, _>>()?
+        };
+        for id in ids.into_iter().skip(keep.max(1)) {
+            if !pinned.contains(&id) {
+                deleted += tx.execute(&format!("DELETE FROM {table} WHERE id = ?1"), [id])?;
+            }
+        }
+    }
+    tx.commit()?;
+    Ok(deleted)
+}
+
+/// The kinds of named driver series.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub enum SeriesKind {
+    /// Monthly ENSO index CSV.
     Enso,
-    /// Daily RMM index.
+    /// Daily RMM index CSV.
     Rmm,
-    /// Wind at one gauge.
-    Wind(String),
+    /// Wind CSV (daily or hourly).
+    Wind,
+    /// ENSO forecast JSON, one target season per version.
+    EnsoForecast,
+}
+
+impl SeriesKind {
+    /// The kind as stored and as written in paths.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            SeriesKind::Enso => "enso",
+            SeriesKind::Rmm => "rmm",
+            SeriesKind::Wind => "wind",
+            SeriesKind::EnsoForecast => "enso_forecast",
+        }
+    }
+
+    /// The kind of a stored name.
+    pub fn parse(text: &str) -> Option<Self> {
+        [Self::Enso, Self::Rmm, Self::Wind, Self::EnsoForecast]
+            .into_iter()
+            .find(|k| k.as_str() == text)
+    }
+}
+
+/// A named driver series: its kind and name, e.g. `enso/enso-monthly`.
+#[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord)]
+pub struct SeriesKey {
+    /// The kind.
+    pub kind: SeriesKind,
+    /// The name (the file stem a gauge TOML gives, see [`series_name`]).
+    pub name: String,
 }
 
 impl SeriesKey {
-    fn columns(&self) -> (&'static str, &str) {
-        match self {
-            SeriesKey::Enso => ("enso", ""),
-            SeriesKey::Rmm => ("rmm", ""),
-            SeriesKey::Wind(gauge) => ("wind", gauge.as_str()),
+    /// A key.
+    pub fn new(kind: SeriesKind, name: impl Into<String>) -> Self {
+        Self {
+            kind,
+            name: name.into(),
         }
     }
 
-    /// A name for messages, e.g. `enso` or `wind/port-alder`.
+    /// A name for messages, e.g. `enso/enso-monthly`.
     pub fn describe(&self) -> String {
-        match self {
-            SeriesKey::Wind(gauge) => format!("wind/{gauge}"),
-            other => other.columns().0.to_owned(),
-        }
+        format!("{}/{}", self.kind.as_str(), self.name)
     }
 }
 
-/// An uploaded driver series.
+/// The series name a gauge TOML's `[drivers]` entry chooses: the file name without its
+/// folders, a `.gz` suffix and one more extension (`../drivers/enso-monthly.csv` ->
+/// `enso-monthly`).
+pub fn series_name(path: &str) -> String {
+    let file = path.rsplit(['/', '\\']).next().unwrap_or(path);
+    let file = file.strip_suffix(".gz").unwrap_or(file);
+    match file.rsplit_once('.') {
+        Some((stem, _)) if !stem.is_empty() => stem.to_owned(),
+        _ => file.to_owned(),
+    }
+}
+
+/// Whether `name` can name a series: 1 to 64 letters, digits, `-`, `_` or `.`, starting
+/// with a letter or digit.
+pub fn valid_series_name(name: &str) -> bool {
+    !name.is_empty()
+        && name.len() <= 64
+        && name.starts_with(|c: char| c.is_ascii_alphanumeric())
+        && name
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '-' | '_' | '.'))
+}
+
+/// One version of a named driver series.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SeriesRecord {
     /// Which series.
     pub key: SeriesKey,
-    /// The CSV text.
+    /// The CSV (or JSON) text.
     pub csv: Vec<u8>,
     /// Data rows.
     pub rows: u64,
@@ -168,81 +304,154 @@ pub struct SeriesRecord {
     pub uploaded_at: String,
 }
 
-/// Inserts or replaces a driver series.
-pub fn put_series(conn: &mut Connection, series: &SeriesRecord) -> Result<(), StoreError> {
-    let (kind, gauge) = series.key.columns();
+/// Stores a new version of a series; returns its version id.
+pub fn put_series(conn: &mut Connection, series: &SeriesRecord) -> Result<i64, StoreError> {
     let tx = conn.transaction()?;
-    tx.execute(
-        "INSERT OR REPLACE INTO driver_series
-             (kind, gauge_id, gzip, bytes, rows, content_hash, uploaded_at)
+    insert_series(&tx, series, &gzip(&series.csv))?;
+    let version = tx.last_insert_rowid();
+    tx.commit()?;
+    Ok(version)
+}
+
+pub(super) fn insert_series(
+    conn: &Connection,
+    series: &SeriesRecord,
+    compressed: &[u8],
+) -> Result<(), StoreError> {
+    conn.execute(
+        "INSERT INTO series_versions (kind, name, gzip, bytes, rows, content_hash, uploaded_at)
          VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)",
         params![
-            kind,
-            gauge,
-            gzip(&series.csv),
+            series.key.kind.as_str(),
+            series.key.name,
+            compressed,
             series.csv.len() as i64,
             series.rows as i64,
             series.content_hash,
             series.uploaded_at
         ],
     )?;
-    tx.commit()?;
     Ok(())
 }
 
-/// A driver series, if uploaded.
-pub fn get_series(conn: &Connection, key: &SeriesKey) -> Result<Option<SeriesRecord>, StoreError> {
-    let (kind, gauge) = key.columns();
-    let row = conn
-        .query_row(
-            "SELECT gzip, rows, content_hash, uploaded_at FROM driver_series
-             WHERE kind = ?1 AND gauge_id = ?2",
-            params![kind, gauge],
-            |row| {
-                Ok((
-                    row.get::<_, Vec<u8>>(0)?,
-                    row.get::<_, i64>(1)?,
-                    row.get::<_, String>(2)?,
-                    row.get::<_, String>(3)?,
-                ))
-            },
-        )
-        .optional()?;
-    row.map(|(blob, rows, content_hash, uploaded_at)| {
-        Ok(SeriesRecord {
+fn series_from_row(
+    key: &SeriesKey,
+    row: (i64, Vec<u8>, i64, String, String),
+) -> Result<(i64, SeriesRecord), StoreError> {
+    let (version, blob, rows, content_hash, uploaded_at) = row;
+    Ok((
+        version,
+        SeriesRecord {
             csv: gunzip_all(&blob, &format!("driver series {}", key.describe()))?,
             key: key.clone(),
             rows: rows as u64,
             content_hash,
             uploaded_at,
-        })
-    })
-    .transpose()
+        },
+    ))
 }
 
-/// Inserts or replaces the ENSO forecast of a target season (JSON text, already validated).
-pub fn put_forecast(
-    conn: &mut Connection,
-    season: &str,
-    issued: &str,
-    json: &str,
-    uploaded_at: &str,
-) -> Result<(), StoreError> {
-    let tx = conn.transaction()?;
-    tx.execute(
-        "INSERT OR REPLACE INTO enso_forecasts (season, issued, json, uploaded_at)
-         VALUES (?1, ?2, ?3, ?4)",
-        params![season, issued, json, uploaded_at],
+/// Every version of a series, oldest first, with its version id.
+pub fn series_versions(
+    conn: &Connection,
+    key: &SeriesKey,
+) -> Result<Vec<(i64, SeriesRecord)>, StoreError> {
+    let mut stmt = conn.prepare(
+        "SELECT id, gzip, rows, content_hash, uploaded_at FROM series_versions
+         WHERE kind = ?1 AND name = ?2 ORDER BY id",
     )?;
-    tx.commit()?;
-    Ok(())
+    let rows = stmt.query_map(params![key.kind.as_str(), key.name], |row| {
+        Ok((
+            row.get(0)?,
+            row.get(1)?,
+            row.get(2)?,
+            row.get(3)?,
+            row.get(4)?,
+        ))
+    })?;
+    let rows = rows.collect::<Result<Vec<_>, _>>()?;
+    rows.into_iter().map(|r| series_from_row(key, r)).collect()
 }
 
-/// All stored ENSO forecasts as `(season, json)`, ordered by season label.
-pub fn get_forecasts(conn: &Connection) -> Result<Vec<(String, String)>, StoreError> {
-    let mut stmt = conn.prepare("SELECT season, json FROM enso_forecasts ORDER BY season")?;
-    let rows = stmt.query_map([], |row| Ok((row.get(0)?, row.get(1)?)))?;
-    Ok(rows.collect::<Result<Vec<_>, _>>()?)
+/// The newest version of a series, with its version id.
+pub fn get_series(
+    conn: &Connection,
+    key: &SeriesKey,
+) -> Result<Option<(i64, SeriesRecord)>, StoreError> {
+    get_series_at_most(conn, key, None)
+}
+
+/// The newest version of a series no newer than `limit` (any version when `None`), with its
+/// version id.
+pub fn get_series_at_most(
+    conn: &Connection,
+    key: &SeriesKey,
+    limit: Option<i64>,
+) -> Result<Option<(i64, SeriesRecord)>, StoreError> {
+    let row = conn
+        .query_row(
+            "SELECT id, gzip, rows, content_hash, uploaded_at FROM series_versions
+             WHERE kind = ?1 AND name = ?2 AND (?3 IS NULL OR id <= ?3)
+             ORDER BY id DESC LIMIT 1",
+            params![key.kind.as_str(), key.name, limit],
+            |row| {
+                Ok((
+                    row.get(0)?,
+                    row.get(1)?,
+                    row.get(2)?,
+                    row.get(3)?,
+                    row.get(4)?,
+                ))
+            },
+        )
+        .optional()?;
+    row.map(|r| series_from_row(key, r)).transpose()
+}
+
+/// One stored series with its versions, as listed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SeriesSummary {
+    /// Which series.
+    pub key: SeriesKey,
+    /// Its versions, oldest first.
+    pub versions: Vec<VersionInfo>,
+}
+
+/// Every stored series, by kind and name.
+pub fn list_series(conn: &Connection) -> Result<Vec<SeriesSummary>, StoreError> {
+    let mut stmt = conn.prepare(
+        "SELECT kind, name, id, uploaded_at, rows, content_hash FROM series_versions
+         ORDER BY kind, name, id",
+    )?;
+    let rows = stmt.query_map([], |row| {
+        Ok((
+            row.get::<_, String>(0)?,
+            row.get::<_, String>(1)?,
+            VersionInfo {
+                version: row.get(2)?,
+                uploaded_at: row.get(3)?,
+                rows: row.get::<_, i64>(4)? as u64,
+                content_hash: row.get(5)?,
+            },
+        ))
+    })?;
+    let mut out: Vec<SeriesSummary> = Vec::new();
+    for row in rows {
+        let (kind, name, info) = row?;
+        let Some(kind) = SeriesKind::parse(&kind) else {
+            continue;
+        };
+        match out.last_mut() {
+            Some(last) if last.key.kind == kind && last.key.name == name => {
+                last.versions.push(info);
+            }
+            _ => out.push(SeriesSummary {
+                key: SeriesKey::new(kind, name),
+                versions: vec![info],
+            }),
+        }
+    }
+    Ok(out)
 }
 
 #[cfg(test)]
@@ -334,8 +543,8 @@ mod tests {
         let (uploads, stored_chunks): (i64, i64) = store
             .call_blocking(|c| {
                 Ok(c.query_row(
-                    "SELECT (SELECT COUNT(*) FROM level_uploads),
-                            (SELECT COUNT(*) FROM level_chunks)",
+                    "SELECT (SELECT COUNT(*) FROM level_versions),
+                            (SELECT COUNT(*) FROM level_version_chunks)",
                     [],
                     |r| Ok((r.get(0)?, r.get(1)?)),
                 )?)
@@ -359,24 +568,56 @@ mod tests {
     }
 
     #[test]
-    fn wind_series_are_per_gauge() {
+    fn series_are_named_and_versioned() {
         let store = store_with_gauge();
-        let wind = SeriesRecord {
-            key: SeriesKey::Wind("g".into()),
-            csv: b"time,u,v\n2026-01-01,1,2\n".to_vec(),
+        let version = |csv: &str| SeriesRecord {
+            key: SeriesKey::new(SeriesKind::Wind, "g-wind"),
+            csv: csv.as_bytes().to_vec(),
             rows: 1,
-            content_hash: "h".into(),
+            content_hash: csv.into(),
             uploaded_at: "t".into(),
         };
-        let expected = wind.clone();
-        store.call_blocking(move |c| put_series(c, &wind)).unwrap();
-        let back = store
-            .call_blocking(|c| get_series(c, &SeriesKey::Wind("g".into())))
+        let (a, b) = (
+            version("time,u,v\n2026-01-01,1,2\n"),
+            version("time,u,v\n2026-01-01,3,4\n"),
+        );
+        let expected = b.clone();
+        store.call_blocking(move |c| put_series(c, &a)).unwrap();
+        store.call_blocking(move |c| put_series(c, &b)).unwrap();
+        let key = SeriesKey::new(SeriesKind::Wind, "g-wind");
+        let k = key.clone();
+        let (_, newest) = store
+            .call_blocking(move |c| get_series(c, &k))
+            .unwrap()
             .unwrap();
-        assert_eq!(back, Some(expected));
+        assert_eq!(newest, expected);
+        let k = key.clone();
+        assert_eq!(
+            store
+                .call_blocking(move |c| series_versions(c, &k))
+                .unwrap()
+                .len(),
+            2
+        );
         let other = store
-            .call_blocking(|c| get_series(c, &SeriesKey::Wind("h".into())))
+            .call_blocking(|c| get_series(c, &SeriesKey::new(SeriesKind::Wind, "h-wind")))
             .unwrap();
         assert_eq!(other, None);
+        let listed = store.call_blocking(|c| list_series(c)).unwrap();
+        assert_eq!(listed.len(), 1);
+        assert_eq!(listed[0].versions.len(), 2);
+    }
+
+    #[test]
+    fn a_toml_path_names_its_series_by_file_stem() {
+        assert_eq!(series_name("../drivers/enso-monthly.csv"), "enso-monthly");
+        assert_eq!(series_name("port-tamsin-wind.csv.gz"), "port-tamsin-wind");
+        assert_eq!(
+            series_name("enso-forecast-2026-DJF.json"),
+            "enso-forecast-2026-DJF"
+        );
+        assert_eq!(series_name("plain"), "plain");
+        assert!(valid_series_name("enso-monthly") && !valid_series_name("-x"));
+        assert!(!valid_series_name("a/b") && !valid_series_name(""));
     }
 }

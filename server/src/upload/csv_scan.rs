@@ -62,7 +62,7 @@ pub fn scan_csv(kind: CsvKind, bytes: &[u8]) -> Result<ScanSummary, UploadError>
         last: String::new(),
     };
     match kind {
-        CsvKind::Levels => scan_levels(what, bytes),
+        CsvKind::Levels => scan_levels_with(what, bytes, &IngestOptions::default()),
         CsvKind::Enso => EnsoSeries::parse(bytes, what)
             .map(|_| driver_rows())
             .map_err(|e| driver_error(what, e)),
@@ -87,9 +87,18 @@ fn utc() -> FixedOffset {
     FixedOffset::east_opt(0).expect("a zero offset is valid")
 }
 
-fn scan_levels(what: &str, bytes: &[u8]) -> Result<ScanSummary, UploadError> {
-    let series = ingest::read_levels(bytes, &IngestOptions::default(), what)
-        .map_err(|e| levels_error(what, e))?;
+/// Checks a water-level CSV read as its gauge reads it (units, sentinel, local days), so
+/// the plausible-range check applies to metres.
+pub fn scan_levels(bytes: &[u8], options: &IngestOptions) -> Result<ScanSummary, UploadError> {
+    scan_levels_with(CsvKind::Levels.describe(), bytes, options)
+}
+
+fn scan_levels_with(
+    what: &str,
+    bytes: &[u8],
+    options: &IngestOptions,
+) -> Result<ScanSummary, UploadError> {
+    let series = ingest::read_levels(bytes, options, what).map_err(|e| levels_error(what, e))?;
     let rows = series.times.len() as u64 + series.missing;
     if rows == 0 {
         return Err(UploadError::Empty {

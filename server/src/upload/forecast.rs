@@ -31,9 +31,10 @@ pub fn parse_enso_forecast(bytes: &[u8]) -> Result<EnsoForecast, UploadError> {
     Ok(to_wire(&forecast))
 }
 
-/// The season definitions to read the label against: the label's own name (as a one-month
-/// season; only the name matters here), or the default seasons when it has no valid name so
-/// that the model's parser names the problem.
+/// The season definitions to read the label against: the label's own name when it is
+/// written as season names are, in capital letters (as a one-month season; only the name
+/// matters here), or the default seasons otherwise, so that the model's parser names the
+/// problem (`2025-12` and `2026-djf` are refused: labels must be exact).
 fn label_specs(bytes: &[u8]) -> Vec<SeasonSpec> {
     serde_json::from_slice::<serde_json::Value>(bytes)
         .ok()
@@ -41,6 +42,7 @@ fn label_specs(bytes: &[u8]) -> Vec<SeasonSpec> {
         .and_then(|value| value.get("season"))
         .and_then(serde_json::Value::as_str)
         .and_then(|label| label.trim().split_once('-'))
+        .filter(|(_, name)| name.bytes().all(|b| b.is_ascii_uppercase()))
         .and_then(|(_, name)| SeasonSpec::new(name, 1, 1).ok())
         .map_or_else(SeasonSpec::meteorological, |spec| vec![spec])
 }

@@ -5,7 +5,8 @@
 
 use std::path::Path;
 
-use tidetally_model::gauge::{GaugeConfig, GaugeError};
+use tidetally_model::gauge::{GaugeConfig, GaugeError, Predictor};
+use tidetally_model::ingest::IngestOptions;
 use tidetally_model::season::SeasonSpec;
 
 use super::UploadError;
@@ -50,6 +51,10 @@ pub struct GaugeMeta {
     pub drivers: DriverFiles,
     /// `k` values for `P(N >= k)`.
     pub exceed_days: Vec<u32>,
+    /// How its level file is read (units, sentinel, local time).
+    pub ingest: IngestOptions,
+    /// The predictors its model uses.
+    pub predictors: Vec<Predictor>,
 }
 
 /// Parses and checks a gauge TOML with the model's gauge loader.
@@ -67,6 +72,8 @@ impl GaugeMeta {
         let config = config.clone();
         let path = |p: &Path| p.to_string_lossy().into_owned();
         GaugeMeta {
+            ingest: config.ingest_options(),
+            predictors: config.model.predictors.clone(),
             utc_offset: config.utc_offset.to_string(),
             levels_file: path(&config.levels.file),
             drivers: DriverFiles {

@@ -11,7 +11,7 @@ mod forecast;
 mod gauge_toml;
 
 pub use body::{MAX_DECOMPRESSED_BYTES, decode_body};
-pub use csv_scan::{CsvKind, ScanSummary, scan_csv};
+pub use csv_scan::{CsvKind, ScanSummary, scan_csv, scan_levels};
 pub use forecast::parse_enso_forecast;
 pub use gauge_toml::{DriverFiles, GaugeMeta, parse_gauge_toml};
 

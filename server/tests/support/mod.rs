@@ -139,3 +139,230 @@ pub async fn upload_gauge(app: &Router, id: &str) {
         String::from_utf8_lossy(&a.body)
     );
 }
+
+/// Loopback helpers: one raw HTTP/1.1 exchange on a real socket.
+pub mod socket {
+    use std::io::{Read, Write};
+    use std::net::{SocketAddr, TcpStream};
+    use std::sync::Arc;
+    use std::time::Duration;
+
+    use tidetally_server::AppState;
+
+    /// A parsed answer from the socket.
+    pub struct Reply {
+        pub status: u16,
+        pub head: String,
+        pub body: String,
+    }
+
+    impl Reply {
+        pub fn json(&self) -> serde_json::Value {
+            serde_json::from_str(&self.body)
+                .unwrap_or_else(|e| panic!("not JSON ({e}): {} {}", self.head, self.body))
+        }
+
+        pub fn header(&self, name: &str) -> Option<String> {
+            let wanted = format!("{}:", name.to_ascii_lowercase());
+            self.head.lines().find_map(|l| {
+                l.to_ascii_lowercase()
+                    .starts_with(&wanted)
+                    .then(|| l[wanted.len()..].trim().to_owned())
+            })
+        }
+    }
+
+    /// Sends `raw` bytes and reads until the server closes (answers with `Connection: close`).
+    pub fn exchange(addr: SocketAddr, raw: &[u8]) -> Reply {
+        let mut stream = TcpStream::connect(addr).expect("connect");
+        stream
+            .set_read_timeout(Some(Duration::from_secs(60)))
+            .expect("timeout");
+        stream.write_all(raw).expect("write");
+        let mut bytes = Vec::new();
+        let _ = stream.read_to_end(&mut bytes);
+        parse(&bytes)
+    }
+
+    /// Parses a whole HTTP/1.1 response (chunked bodies joined).
+    pub fn parse(bytes: &[u8]) -> Reply {
+        let text = String::from_utf8_lossy(bytes).into_owned();
+        let (head, body) = text.split_once("\r\n\r\n").unwrap_or((text.as_str(), ""));
+        let status = head
+            .split(' ')
+            .nth(1)
+            .and_then(|s| s.parse().ok())
+            .unwrap_or(0);
+        let body = if head
+            .to_ascii_lowercase()
+            .contains("transfer-encoding: chunked")
+        {
+            let mut out = String::new();
+            let mut rest = body;
+            while let Some((size, tail)) = rest.split_once("\r\n") {
+                let n = usize::from_str_radix(size.trim(), 16).unwrap_or(0);
+                if n == 0 || tail.len() < n {
+                    break;
+                }
+                out.push_str(&tail[..n]);
+                rest = tail.get(n + 2..).unwrap_or("");
+            }
+            out
+        } else {
+            body.to_owned()
+        };
+        Reply {
+            status,
+            head: head.to_owned(),
+            body,
+        }
+    }
+
+    /// One request with `Connection: close`; `token` adds `Authorization: Bearer`.
+    pub fn request(
+        addr: SocketAddr,
+        method: &str,
+        path: &str,
+        token: Option<&str>,
+        body: &[u8],
+    ) -> Reply {
+        let auth = token
+            .map(|t| format!("Authorization: Bearer {t}\r\n"))
+            .unwrap_or_default();
+        let mut raw = format!(
+            "{method} {path} HTTP/1.1\r\nHost: {addr}\r\n{auth}Content-Length: {}\r\nConnection: close\r\n\r\n",
+            body.len()
+        )
+        .into_bytes();
+        raw.extend_from_slice(body);
+        exchange(addr, &raw)
+    }
+
+    /// Async wrapper of [`request`] (the client runs on a blocking thread).
+    pub async fn call(
+        addr: SocketAddr,
+        method: &'static str,
+        path: String,
+        token: Option<&'static str>,
+        body: Vec<u8>,
+    ) -> Reply {
+        tokio::task::spawn_blocking(move || request(addr, method, &path, token, &body))
+            .await
+            .expect("client task")
+    }
+
+    /// Serves `state` on a loopback port until the returned sender fires or is dropped.
+    pub async fn serve(
+        state: Arc<AppState>,
+    ) -> (
+        SocketAddr,
+        tokio::sync::oneshot::Sender<()>,
+        tokio::task::JoinHandle<std::io::Result<()>>,
+    ) {
+        let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
+            .await
+            .expect("bind");
+        let addr = listener.local_addr().expect("address");
+        let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
+        let server = tokio::spawn(tidetally_server::run(listener, state, async {
+            let _ = stopped.await;
+        }));
+        (addr, stop, server)
+    }
+}
+
+/// A fresh folder under the system temp dir, unique to this test process and name.
+pub fn temp_dir(name: &str) -> std::path::PathBuf {
+    let dir = std::env::temp_dir().join(format!("tidetally-test-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    dir
+}
+
+/// Water levels: `days` days of hourly readings from 2020-01-01, a daily tide-like swing.
+pub fn hourly_levels(days: u32) -> String {
+    let mut csv = String::from("time,level\n");
+    let start = chrono::NaiveDate::from_ymd_opt(2020, 1, 1).expect("a date");
+    for d in 0..days {
+        let date = start + chrono::Days::new(u64::from(d));
+        for h in 0..24 {
+            let level = 0.5 + 0.4 * ((f64::from(h) / 24.0) * std::f64::consts::TAU).sin();
+            csv.push_str(&format!("{date}T{h:02}:00:00Z,{level:.3}\n"));
+        }
+    }
+    csv
+}
+
+/// The demo coastline for socket tests.
+pub mod demo {
+    use std::path::{Path, PathBuf};
+    use std::sync::Arc;
+    use std::time::Duration;
+
+    use tidetally_server::auth::Token;
+    use tidetally_server::store::Store;
+    use tidetally_server::{AppState, state};
+
+    use super::{TOKEN, temp_dir};
+
+    pub fn demo(path: &str) -> PathBuf {
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../demo-data")
+            .join(path)
+    }
+
+    /// A data folder with one demo gauge (its tidal driver left out to keep the fit quick) and
+    /// the demo's driver files, laid out as in `demo-data/`.
+    pub fn demo_folder(name: &str) -> PathBuf {
+        let dir = temp_dir(name);
+        std::fs::create_dir_all(dir.join("gauges")).expect("demo data");
+        std::fs::create_dir_all(dir.join("drivers")).expect("demo data");
+        let toml = std::fs::read_to_string(demo("gauges/port-tamsin.toml"))
+            .expect("demo data")
+            .replace(
+                "predictors = [\"enso\", \"mjo\", \"wind\", \"sea_level\", \"tide\"]",
+                "predictors = [\"enso\", \"mjo\", \"sea_level\"]",
+            );
+        assert!(!toml.contains("\"tide\""), "the demo TOML changed shape");
+        std::fs::write(dir.join("gauges/port-tamsin.toml"), toml).expect("demo data");
+        for file in [
+            "gauges/port-tamsin-levels.csv.gz",
+            "gauges/port-tamsin-wind.csv",
+            "drivers/enso-monthly.csv",
+            "drivers/rmm-daily.csv",
+            "drivers/enso-forecast-2026-DJF.json",
+        ] {
+            std::fs::copy(demo(file), dir.join(file)).expect("demo data");
+        }
+        dir
+    }
+
+    /// A loaded state over a store seeded from `data`, writes enabled.
+    pub async fn seeded_state_with(
+        data: &Path,
+        configure: impl FnOnce(AppState) -> AppState,
+    ) -> Arc<AppState> {
+        let store = Store::open_in_memory().expect("in-memory store");
+        let gauges = data.join("gauges");
+        store
+            .call_blocking(|c| Ok(state::seed_from_dir(c, &gauges)))
+            .expect("demo data")
+            .expect("demo data");
+        let state = Arc::new(configure(AppState::unshared(
+            store,
+            Some(Token::new(TOKEN.into())),
+            Duration::from_secs(60),
+        )));
+        let loader = Arc::clone(&state);
+        tokio::task::spawn_blocking(move || state::load_catalog(&loader))
+            .await
+            .expect("demo data")
+            .expect("demo data");
+        state
+    }
+
+    /// [`seeded_state_with`] with the default pools and no test hook.
+    pub async fn seeded_state(data: &Path) -> Arc<AppState> {
+        seeded_state_with(data, |s| s).await
+    }
+}
