@@ -118,11 +118,16 @@ fn every_demo_gauge_gets_a_hindcast_with_intervals_and_a_verdict() {
 
 #[test]
 fn the_hindcast_command_runs_on_a_demo_gauge() {
-    use tidetally_server::cli::{Cli, Command, GaugeArgs, run};
-    let command = |gauge: PathBuf, csv: bool| Cli {
-        command: Command::Hindcast(GaugeArgs { gauge, csv }),
+    use tidetally_server::cli::{Cli, Command, EnsoArg, HindcastArgs, run};
+    let command = |gauge: PathBuf, enso: EnsoArg| Cli {
+        command: Command::Hindcast(HindcastArgs { gauge, enso }),
     };
-    run(command(gauge_file("corrin-quay"), false)).unwrap();
-    assert!(run(command(PathBuf::from("no-such-gauge.toml"), false)).is_err());
-    assert!(run(command(gauge_file("corrin-quay"), true)).is_err());
+    run(command(gauge_file("corrin-quay"), EnsoArg::AtIssue)).unwrap();
+    assert!(
+        run(command(
+            PathBuf::from("no-such-gauge.toml"),
+            EnsoArg::Observed
+        ))
+        .is_err()
+    );
 }

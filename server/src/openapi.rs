@@ -193,6 +193,11 @@ pub const SCHEMAS: &[(&str, &[(&str, &str)])] = &[
             ("family", "string"),
             ("fit_period", "object"),
             ("notes", "array"),
+            ("engine", "string"),
+            ("engine_reason", "string"),
+            ("other_engine", "object|null"),
+            ("days", "array"),
+            ("water_effects", "array"),
         ],
     ),
     (
@@ -203,6 +208,7 @@ pub const SCHEMAS: &[(&str, &[(&str, &str)])] = &[
             ("method", "string"),
             ("skill", "object"),
             ("cases", "array"),
+            ("engines", "array"),
         ],
     ),
     (

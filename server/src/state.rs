@@ -191,10 +191,9 @@ fn read_seed_gauge(toml_path: &Path, now: &str) -> Result<SeedGauge, SeedError> 
                 (csv, rows)
             }
             None => {
-                let forecast =
-                    upload::parse_enso_forecast(&bytes).map_err(|e| invalid(&path, e))?;
-                let json = serde_json::to_vec(&forecast).expect("wire types always serialize");
-                (json, 0)
+                // Checked, then stored as written: its free-text note reaches the outlook.
+                upload::parse_enso_forecast(&bytes).map_err(|e| invalid(&path, e))?;
+                (bytes, 0)
             }
         };
         series.push(SeriesRecord {

@@ -1,22 +1,17 @@
-//! The predictive distribution of one held-out season, built the way the outlook builds
-//! one: an equal-weight mixture of `draws` components, component `d` pairing parameter draw
-//! `d` of the training fit with driver scenario `d`. In a scenario, drivers known at issue
-//! time take the season's own value; the others take the value of one training season drawn
-//! at random (the same season for all of them, so MJO and wind stay paired as they
+//! The predictive distribution of one held-out season, built by the outlook's own function
+//! ([`crate::outlook::predictive::mix_draws`], so the skill quoted is the skill of what is
+//! served): an equal-weight mixture of `draws` components, component `d` pairing parameter
+//! draw `d` of the training fit with driver scenario `d`. In a scenario, drivers known at
+//! issue time take the season's own value; the others take the value of one training season
+//! drawn at random (the same season for all of them, so MJO and wind stay paired as they
 //! happened). The exposure is the season's observed days, and the distribution is truncated
-//! there, so it is the distribution of the count that was actually observed. Each component
-//! is also cut where its upper tail falls below [`TAIL_CUT`] of its mass (and renormalised),
-//! which changes no probability by more than that share and skips the far tail's arithmetic.
+//! there, so it is the distribution of the count that was actually observed.
 
 use rand::Rng;
 
 use super::HindcastError;
 use crate::fit::{DesignRow, Predictor};
-use crate::glm::{FittedGlm, PmfMixture};
-
-/// Share of a component's mass below which its upper tail is cut (far below any score's
-/// resolution: the log score floors probabilities at a far larger value).
-pub(crate) const TAIL_CUT: f64 = 1e-12;
+use crate::glm::FittedGlm;
 
 /// Where each of a model's predictors takes its value from in a scenario.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -78,9 +73,7 @@ pub(crate) fn case_pmf(
     let n_max = target.observed_days as usize;
     let offset = f64::from(target.observed_days).ln();
     let parameters = glm.draw_parameters(rng, draws);
-    let mut mixture = PmfMixture::with_tail_cut(n_max, TAIL_CUT);
-    let mut x = vec![0.0; sources.len()];
-    for (d, draw) in parameters.iter().enumerate() {
+    crate::outlook::predictive::mix_draws(&parameters, n_max, offset, |d, x| {
         let past = scenario_rows[d % scenario_rows.len()];
         for (slot, source) in x.iter_mut().zip(sources) {
             *slot = match *source {
@@ -92,19 +85,11 @@ pub(crate) fn case_pmf(
                     .unwrap_or(f64::NAN),
             };
         }
-        // A draw whose mean under- or overflows is skipped, as in the outlook; too many
-        // skips is an error below.
-        let _ = draw.add_to(&mut mixture, &x, offset);
-    }
-    let used = mixture.components();
-    let degenerate = || HindcastError::DegenerateDraws {
+    })
+    .map(|mixed| mixed.pmf)
+    .map_err(|(used, drawn)| HindcastError::DegenerateDraws {
         season: target.season.label(),
         used,
-        drawn: parameters.len(),
-    };
-    if used * 2 < parameters.len() {
-        return Err(degenerate());
-    }
-    let mixed = mixture.finish().ok_or_else(degenerate)?;
-    Ok(mixed.distribution.pmf)
+        drawn,
+    })
 }

@@ -20,7 +20,9 @@ pub struct CautionContext<'a> {
 pub fn cautions(context: &CautionContext<'_>) -> Vec<String> {
     let mut out = vec![
         "This is a seasonal probability, not a warning: it says how likely different numbers \
-         of flood days are over the whole season, not whether any given day will flood."
+         of flood days are over the whole season. The chance shown for each day is a seasonal \
+         estimate from the predicted tide and past weather, not a forecast or a warning for \
+         that day."
             .to_owned(),
         format!(
             "It counts days when the water at the {} gauge reaches {:.2} m above {}; it does not \

@@ -53,28 +53,39 @@ pub fn predictive_pmf(
         model.glm.draw_parameters(rng, draws)
     };
     let offset = f64::from(season_days).ln();
-    let mut mixture = Mixture::new(season_days as usize);
-    let mut x = vec![0.0; columns.len()];
-    for (d, draw) in parameters.iter().enumerate() {
+    mix_draws(&parameters, season_days as usize, offset, |d, x| {
         for (slot, column) in x.iter_mut().zip(&columns) {
             *slot = column.values[d % column.values.len()];
         }
-        // A draw whose mean is not finite (an absurd coefficient draw) is skipped; too many
-        // skips is an error below.
+    })
+    .map_err(|(used, drawn)| OutlookError::DegenerateDraws { used, drawn })
+}
+
+/// The one predictive path of the count model, for the outlook and every hindcast case: an
+/// equal-weight mixture on `0..=n_max` with one component per parameter draw `d`, at the
+/// predictor row `fill(d, x)` writes and the exposure `offset` (ln days). A draw whose mean
+/// is not finite (an absurd coefficient draw) is skipped; when more than half are skipped
+/// the result is `Err((used, drawn))`.
+pub fn mix_draws(
+    parameters: &[crate::glm::ParameterDraw],
+    n_max: usize,
+    offset: f64,
+    mut fill: impl FnMut(usize, &mut [f64]),
+) -> Result<CountDistribution, (usize, usize)> {
+    let width = parameters
+        .first()
+        .map_or(0, |p| p.coefficients.len().saturating_sub(1));
+    let mut mixture = Mixture::new(n_max);
+    let mut x = vec![0.0; width];
+    for (d, draw) in parameters.iter().enumerate() {
+        fill(d, &mut x);
         if let Ok(eta) = draw.linear_predictor(&x, offset) {
             mixture.add(eta.exp(), draw.theta);
         }
     }
     let used = mixture.components();
     if used * 2 < parameters.len() {
-        return Err(OutlookError::DegenerateDraws {
-            used,
-            drawn: parameters.len(),
-        });
+        return Err((used, parameters.len()));
     }
-    let mixed = mixture.finish().ok_or(OutlookError::DegenerateDraws {
-        used: 0,
-        drawn: parameters.len(),
-    })?;
-    Ok(mixed)
+    mixture.finish().ok_or((0, parameters.len()))
 }

@@ -1,15 +1,23 @@
-//! `tidetally hindcast --gauge FILE`: out-of-sample skill of the gauge's model of each season
-//! name against the climatology and the trend-only baseline, as JSON (per scheme, per model:
-//! scores, skill intervals, reliability bins, ROC, and the verdict sentences).
+//! `tidetally hindcast --gauge FILE [--enso observed|at-issue|resampled]`: out-of-sample skill
+//! of both engines (the count model and the water-level engine) of each season name against
+//! the climatology and the trend-only baseline, as JSON (per scheme, per model: scores, skill
+//! intervals, reliability bins, ROC, and the verdict sentences).
 
-use tidetally_model::hindcast::{self, HindcastOptions};
+use tidetally_model::hindcast::{self, ConcurrentEnso, HindcastOptions};
 
-pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
-    if args.csv {
-        anyhow::bail!("`hindcast` prints JSON only; --csv applies to `counts`");
-    }
+use super::EnsoArg;
+
+pub(super) fn run(args: super::HindcastArgs) -> anyhow::Result<()> {
     let prepared = super::prepare_gauge(&args.gauge)?;
-    let report = hindcast::hindcast_gauge(&prepared, &HindcastOptions::default())?;
+    let options = HindcastOptions {
+        concurrent_enso: match args.enso {
+            EnsoArg::Observed => ConcurrentEnso::Observed,
+            EnsoArg::AtIssue => ConcurrentEnso::AtIssue,
+            EnsoArg::Resampled => ConcurrentEnso::Resampled,
+        },
+        ..HindcastOptions::default()
+    };
+    let report = hindcast::hindcast_gauge(&prepared, &options)?;
     if report.seasons.is_empty() {
         let reasons: Vec<String> = report
             .not_run

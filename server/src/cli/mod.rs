@@ -47,7 +47,7 @@ pub enum Command {
     Outlook(OutlookArgs),
     /// Out-of-sample skill of the gauge's model against the climatology and the trend-only
     /// baseline (both schemes, every score, bootstrap intervals, verdicts).
-    Hindcast(GaugeArgs),
+    Hindcast(HindcastArgs),
 }
 
 /// Arguments of `serve`.
@@ -78,6 +78,31 @@ pub struct GaugeArgs {
     /// Write the season table as CSV instead of JSON.
     #[arg(long)]
     pub csv: bool,
+}
+
+/// Arguments of `hindcast`.
+#[derive(Debug, Args)]
+pub struct HindcastArgs {
+    /// The gauge's TOML file; it names its data files relative to itself.
+    #[arg(long)]
+    pub gauge: PathBuf,
+    /// How each past season's own ENSO is known to its forecast: `observed` (a perfect ENSO
+    /// forecast, an upper bound), `at-issue` (the month before the season carried forward
+    /// with its past error, as a real outlook would have known it) or `resampled` (no ENSO
+    /// foresight).
+    #[arg(long, value_enum, default_value_t = EnsoArg::Observed)]
+    pub enso: EnsoArg,
+}
+
+/// The `--enso` choice of `hindcast`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum EnsoArg {
+    /// The season's observed ENSO.
+    Observed,
+    /// ENSO as known when the outlook would have been issued.
+    AtIssue,
+    /// ENSO resampled from the training seasons.
+    Resampled,
 }
 
 /// Arguments of `glm`.
