@@ -675,3 +675,84 @@ fn held_out_span(
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::season::SeasonSpec;
+
+    fn djf(year: i32) -> Season {
+        Season::new(year, SeasonSpec::new("DJF", 12, 3).expect("spec")).expect("season")
+    }
+
+    fn date(y: i32, m: u32, d: u32) -> chrono::NaiveDate {
+        chrono::NaiveDate::from_ymd_opt(y, m, d).expect("date")
+    }
+
+    #[test]
+    fn the_trend_refit_leaves_out_what_the_scheme_leaves_out() {
+        // Rolling origin: everything from the target season's first day on.
+        let (first, last) = held_out_span(Scheme::RollingOrigin { min_training: 15 }, &djf(2010));
+        assert_eq!((first, last), (date(2010, 12, 1), None));
+        // Leave one year out with one neighbour: from the 2009-DJF season to 2011-DJF's end.
+        let (first, last) =
+            held_out_span(Scheme::LeaveOneYearOut { neighbour_years: 1 }, &djf(2010));
+        assert_eq!(first, date(2009, 12, 1));
+        assert_eq!(last, Some(date(2012, 2, 29)));
+    }
+
+    #[test]
+    fn each_engine_knows_enso_as_the_treatment_says() {
+        let at = |treatment, count_concurrent| EnsoKnowledge {
+            treatment,
+            count_concurrent,
+        };
+        // A count model on the preceding season's ENSO always knows it; the water engine's
+        // ENSO is the season's own months, so it follows the treatment.
+        let preceding = at(ConcurrentEnso::AtIssue, false);
+        assert_eq!(preceding.count_source(), EnsoFrom::Target);
+        assert_eq!(preceding.water_source(), EnsoFrom::AtIssue);
+        let perfect = at(ConcurrentEnso::Observed, true);
+        assert_eq!(perfect.count_source(), EnsoFrom::Target);
+        assert_eq!(perfect.water_source(), EnsoFrom::Target);
+        let none = at(ConcurrentEnso::Resampled, true);
+        assert_eq!(none.count_source(), EnsoFrom::Resampled);
+    }
+
+    #[test]
+    fn an_issue_rule_says_whether_the_value_is_known() {
+        let rule = issue_rule(
+            Predictor::Enso,
+            EnsoTiming::Concurrent,
+            ConcurrentEnso::AtIssue,
+        );
+        assert!(!rule.known);
+        assert!(rule.rule.contains("carried forward"), "{}", rule.rule);
+        let rule = issue_rule(
+            Predictor::Enso,
+            EnsoTiming::Concurrent,
+            ConcurrentEnso::Observed,
+        );
+        assert!(
+            rule.known && rule.rule.contains("upper bound"),
+            "{}",
+            rule.rule
+        );
+        assert!(
+            issue_rule(
+                Predictor::Tide,
+                EnsoTiming::Preceding,
+                ConcurrentEnso::AtIssue
+            )
+            .known
+        );
+        assert!(
+            !issue_rule(
+                Predictor::Wind,
+                EnsoTiming::Preceding,
+                ConcurrentEnso::Observed
+            )
+            .known
+        );
+    }
+}
