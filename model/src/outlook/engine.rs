@@ -284,3 +284,178 @@ fn replace_distribution(outlook: &mut Outlook, distribution: &CountDistribution)
         None => outlook.explanation.push(summary),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fit::FitPeriod;
+    use crate::glm::Family;
+    use crate::hindcast::EngineScore;
+    use crate::season::{Season, SeasonSpec};
+    use crate::water::{LeadIn, WaterDay};
+
+    fn count_outlook() -> Outlook {
+        Outlook {
+            gauge_id: "test".into(),
+            season: "2026-DJF".into(),
+            season_days: 3,
+            family: Family::Poisson,
+            fit_period: FitPeriod {
+                first: "1990-DJF".into(),
+                last: "2025-DJF".into(),
+                seasons: 36,
+            },
+            draws: 1,
+            seed: 1,
+            pmf: vec![0.7, 0.2, 0.1, 0.0],
+            mean: 0.4,
+            median: 0,
+            p10: 0,
+            p90: 1,
+            exceedance: vec![Exceedance {
+                days: 1,
+                probability: 0.3,
+            }],
+            terciles: Vec::new(),
+            climatological_mean: 0.5,
+            trend_only_mean: None,
+            last_season_observed: None,
+            drivers: Vec::new(),
+            explanation: vec!["count".into()],
+            cautions: vec!["A seasonal probability, not a warning.".into()],
+            notes: Vec::new(),
+            engine: Engine::Count,
+            engine_reason: String::new(),
+            other_engine: None,
+            days: Vec::new(),
+            water: None,
+        }
+    }
+
+    fn water_forecast(add_nothing: bool) -> WaterForecast {
+        let season = Season::new(2026, SeasonSpec::new("DJF", 12, 3).expect("spec")).expect("s");
+        let days = (0..3)
+            .map(|i| WaterDay {
+                date: season.first_day() + chrono::Duration::days(i),
+                year: 2026.9,
+                predicted_high: 1.0,
+                residual: None,
+                flood: false,
+                enso: None,
+                mjo_in_phases: None,
+                mjo_opposite: None,
+                wind: None,
+            })
+            .collect();
+        WaterForecast {
+            simulated: Simulated {
+                pmf: vec![0.1, 0.2, 0.3, 0.4],
+                day_chance: vec![0.5, 0.6, 0.9],
+                day_level: vec![1.0, 1.1, 1.2],
+                counted_days: 3,
+                simulations: 10,
+            },
+            season: SeasonWater {
+                season,
+                days,
+                lead_in: LeadIn::default(),
+            },
+            report: WaterReport {
+                season_name: "DJF".into(),
+                days: 100,
+                seasons: 10,
+                residual_sd_m: 0.1,
+                effects: Vec::new(),
+                drivers_add_nothing: add_nothing,
+                persistence: None,
+                block_days: 5.0,
+                errors: String::new(),
+                residual: String::new(),
+            },
+            enso_source: "test".into(),
+        }
+    }
+
+    fn hindcast_with(water: f64, count: f64) -> SeasonHindcast {
+        let engines = vec![
+            EngineScore {
+                model: ModelKind::Water,
+                crps_by_scheme: vec![water, water],
+                mean_crps: water,
+            },
+            EngineScore {
+                model: ModelKind::Drivers,
+                crps_by_scheme: vec![count, count],
+                mean_crps: count,
+            },
+        ];
+        SeasonHindcast {
+            season_name: "DJF".into(),
+            predictors: Vec::new(),
+            issue_time: Vec::new(),
+            families: Vec::new(),
+            usable_seasons: 30,
+            left_out: Vec::new(),
+            schemes: Vec::new(),
+            verdicts: Vec::new(),
+            water_verdicts: Vec::new(),
+            enso: crate::hindcast::ConcurrentEnso::AtIssue,
+            engines,
+            notes: Vec::new(),
+        }
+    }
+
+    #[test]
+    fn the_engine_with_the_lower_crps_leads_and_ties_go_to_water() {
+        let auto = |w, c| choose(EngineRequest::Auto, true, Some(&hindcast_with(w, c))).engine;
+        assert_eq!(auto(0.9, 1.0), Engine::Water);
+        assert_eq!(auto(1.2, 1.0), Engine::Count);
+        // Within 1% of the count model: the water engine.
+        assert_eq!(auto(1.009, 1.0), Engine::Water);
+        assert_eq!(auto(1.02, 1.0), Engine::Count);
+        assert_eq!(
+            choose(EngineRequest::Auto, false, Some(&hindcast_with(0.1, 1.0))).engine,
+            Engine::Count
+        );
+        assert_eq!(
+            choose(EngineRequest::Count, true, None).engine,
+            Engine::Count
+        );
+        let reason = choose(EngineRequest::Auto, true, Some(&hindcast_with(0.9, 1.0))).reason;
+        assert!(reason.contains("0.90 against 1.00"), "{reason}");
+    }
+
+    #[test]
+    fn leading_with_water_replaces_the_distribution_and_keeps_the_other_beside_it() {
+        let choice = EngineChoice {
+            engine: Engine::Water,
+            reason: "test".into(),
+        };
+        let o = lead(count_outlook(), Some(water_forecast(true)), choice);
+        assert_eq!(o.engine, Engine::Water);
+        assert_eq!(o.pmf, vec![0.1, 0.2, 0.3, 0.4]);
+        assert!((o.mean - 2.0).abs() < 1e-12);
+        assert!((o.exceedance[0].probability - 0.9).abs() < 1e-12);
+        let other = o.other_engine.as_ref().expect("count summary");
+        assert_eq!(other.engine, Engine::Count);
+        assert!((other.mean - 0.4).abs() < 1e-12);
+        assert_eq!(o.days.len(), 3);
+        assert!((o.days[2].chance - 0.9).abs() < 1e-12);
+        assert!(
+            o.notes
+                .iter()
+                .any(|n| n.contains("add nothing beyond the tide")),
+            "{:?}",
+            o.notes
+        );
+        // The count model leading keeps its own pmf and the calendar.
+        let choice = EngineChoice {
+            engine: Engine::Count,
+            reason: "test".into(),
+        };
+        let o = lead(count_outlook(), Some(water_forecast(false)), choice);
+        assert_eq!(o.pmf, vec![0.7, 0.2, 0.1, 0.0]);
+        assert_eq!(o.days.len(), 3);
+        assert!(!o.notes.iter().any(|n| n.contains("add nothing")));
+    }
+}
