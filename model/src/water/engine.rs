@@ -2,7 +2,7 @@
 //! and the pool of past residual sequences the simulation resamples.
 //!
 //! Unchecked [`WaterParams`] -> checked [`WaterConfig`] -> [`WaterConfig::fit`] ->
-//! [`WaterFit`], which alone can simulate a season ([`crate::water::simulate`]).
+//! [`WaterFit`], which alone can simulate a season ([`crate::water::simulate()`]).
 
 use serde::Serialize;
 

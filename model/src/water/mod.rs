@@ -10,7 +10,7 @@
 //!    minus the tide model's mean, so the trend is counted once) regressed on the drivers by
 //!    least squares with season-clustered errors ([`regression`]); the past seasons'
 //!    residual sequences, with their slow term and fitted ENSO effect removed, form the pool;
-//! 3. [`simulate`]: each simulated season adds to the known tide the projected slow term
+//! 3. [`mod@simulate`]: each simulated season adds to the known tide the projected slow term
 //!    (with its error), the ENSO effect of a scenario (coefficient drawn) and a resampled
 //!    past residual sequence; a day floods when the sum reaches the threshold. The counts give
 //!    the pmf, each day's share of flooded simulations the day calendar.

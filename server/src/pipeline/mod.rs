@@ -227,7 +227,7 @@ pub struct WireOutlook {
 }
 
 /// Issues the outlook of `target` from a prepared gauge (holding the ENSO forecast for
-/// `target`) through the model's one path ([`model_outlook::issue`]), converted to wire
+/// `target`) through the model's one path ([`model_outlook::issue()`]), converted to wire
 /// types. The command line and the service both come here.
 pub fn issue_outlook(
     prepared: &PreparedGauge,
