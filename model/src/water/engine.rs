@@ -229,8 +229,8 @@ fn regressors(day: &super::days::WaterDay, columns: Columns) -> Option<Vec<f64>>
     Some(row)
 }
 
-/// The slow mean-sea-level term of a day: the sea-level source's level minus the tide
-/// model's mean, evaluated once per distinct day.
+/// The slow mean-sea-level term at a decimal year: the sea-level source's level minus the
+/// tide model's mean (the level beyond what the tide model already carries).
 struct SlowTerm<'a> {
     source: &'a SeaLevelSource,
     tide_mean: f64,

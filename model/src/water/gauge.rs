@@ -176,9 +176,7 @@ impl GaugeWater {
             rng,
         )
     }
-}
 
-impl GaugeWater {
     /// The water-level engine of `season_name` at a prepared gauge (its decoded readings,
     /// daily record, tide model, drivers and `[sea_level]` setting).
     pub fn for_gauge(
