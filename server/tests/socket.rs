@@ -6,7 +6,6 @@
 mod support;
 
 use std::net::SocketAddr;
-use std::path::PathBuf;
 use std::time::Duration;
 
 use support::*;
@@ -14,14 +13,6 @@ use tidetally_server::auth::Token;
 use tidetally_server::store::Store;
 use tidetally_server::{AppState, state};
 use tidetally_test_support::http::request;
-
-/// A fresh folder under the system temp dir, unique to this test process and name.
-fn temp_dir(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tidetally-test-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).expect("temp dir");
-    dir
-}
 
 /// One request through the shared test client; returns status and body text.
 fn http(
@@ -69,15 +60,7 @@ async fn start(
         .await
         .unwrap()
         .expect("catalog loads");
-    let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
-        .await
-        .expect("bind");
-    let addr = listener.local_addr().expect("address");
-    let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
-    let server = tokio::spawn(tidetally_server::run(listener, state, async {
-        let _ = stopped.await;
-    }));
-    (addr, stop, server)
+    socket::serve(state).await
 }
 
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]

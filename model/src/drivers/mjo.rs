@@ -179,11 +179,6 @@ impl RmmSeries {
         }
     }
 
-    /// The (RMM1, RMM2) components of a day, if present.
-    pub fn components(&self, day: NaiveDate) -> Option<(f64, f64)> {
-        self.days.get(&day).copied()
-    }
-
     /// The state of a day, if present.
     pub fn state(&self, day: NaiveDate) -> Option<RmmState> {
         let &(a, b) = self.days.get(&day)?;

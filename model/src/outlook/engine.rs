@@ -292,7 +292,7 @@ mod tests {
     use crate::glm::Family;
     use crate::hindcast::EngineScore;
     use crate::season::{Season, SeasonSpec};
-    use crate::water::{LeadIn, WaterDay};
+    use crate::water::WaterDay;
 
     fn count_outlook() -> Outlook {
         Outlook {
@@ -358,7 +358,7 @@ mod tests {
             season: SeasonWater {
                 season,
                 days,
-                lead_in: LeadIn::default(),
+                lead_in: Vec::new(),
             },
             report: WaterReport {
                 season_name: "DJF".into(),

@@ -49,16 +49,6 @@ pub struct WaterDay {
 /// Days before a season whose weather is known when its outlook is issued.
 pub const LEAD_IN_DAYS: usize = 10;
 
-/// The state of the water and the MJO just before a season: known at issue time, and the
-/// start of the weather the season inherits.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct LeadIn {
-    /// The [`LEAD_IN_DAYS`] days before the season (observed residual and the month's ENSO).
-    pub days: Vec<WaterDay>,
-    /// RMM1 and RMM2 on the day before the season.
-    pub rmm: Option<(f64, f64)>,
-}
-
 /// The days of one season.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SeasonWater {
@@ -66,8 +56,9 @@ pub struct SeasonWater {
     pub season: Season,
     /// Its days, in order (all calendar days).
     pub days: Vec<WaterDay>,
-    /// The days just before it.
-    pub lead_in: LeadIn,
+    /// The [`LEAD_IN_DAYS`] days just before it (known at issue time: the start of the
+    /// weather the season inherits).
+    pub lead_in: Vec<WaterDay>,
 }
 
 impl SeasonWater {
@@ -91,13 +82,6 @@ pub struct DayDrivers<'a> {
     pub rmm: Option<(&'a RmmSeries, &'a PhaseSet)>,
     /// Wind and the coast that turns it along-shore.
     pub wind: Option<(&'a WindSeries, &'a Coast)>,
-}
-
-impl DayDrivers<'_> {
-    /// RMM1 and RMM2 of `date`.
-    pub fn rmm_of(&self, date: NaiveDate) -> Option<(f64, f64)> {
-        self.rmm.and_then(|(series, _)| series.components(date))
-    }
 }
 
 impl DayDrivers<'_> {
@@ -198,7 +182,7 @@ impl DayGrid {
         SeasonWater {
             season: season.clone(),
             days: self.unobserved(tide, season.first_day(), season.calendar_days(), drivers),
-            lead_in: LeadIn::default(),
+            lead_in: Vec::new(),
         }
     }
 }
@@ -263,10 +247,7 @@ pub fn season_days(
         }
         let days = all.split_off(LEAD_IN_DAYS);
         out.push(SeasonWater {
-            lead_in: LeadIn {
-                days: all,
-                rmm: drivers.rmm_of(season.first_day() - chrono::Duration::days(1)),
-            },
+            lead_in: all,
             season,
             days,
         });

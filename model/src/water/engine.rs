@@ -123,14 +123,13 @@ impl WaterConfig {
         let mut y = Vec::new();
         let mut blocks = Vec::new();
         let mut pool = Vec::with_capacity(training.len());
-        let mut slow_cache = SlowTerm::new(sea_level, tide_mean);
         for &s in training {
             let season = seasons.get(s).ok_or(WaterError::NoSeason { index: s })?;
             let mut sequence = Vec::with_capacity(season.days.len());
             for day in &season.days {
                 let entry = match day.residual {
                     Some(r) => {
-                        let slow = slow_cache.at(day.year)?;
+                        let slow = slow_term(sea_level, tide_mean, day.year)?;
                         let y_day = r - slow;
                         let row = regressors(day, columns);
                         if let Some(row) = &row {
@@ -173,12 +172,16 @@ impl WaterConfig {
             day.value -= enso_coefficient * day.enso;
         }
         // The lead-in state of each training season, then its persistence into the season.
-        let mut slow = SlowTerm::new(sea_level, tide_mean);
         let anomalies = training
             .iter()
             .map(|&s| {
-                lead_state(&seasons[s], &mut slow, enso_coefficient, columns.enso)
-                    .map(|l| l.anomaly)
+                lead_anomaly(
+                    &seasons[s],
+                    sea_level,
+                    tide_mean,
+                    enso_coefficient,
+                    columns.enso,
+                )
             })
             .collect::<Result<Vec<_>, _>>()?;
         let persistence = super::persistence::estimate(&pool, &anomalies);
@@ -231,40 +234,24 @@ fn regressors(day: &super::days::WaterDay, columns: Columns) -> Option<Vec<f64>>
 
 /// The slow mean-sea-level term at a decimal year: the sea-level source's level minus the
 /// tide model's mean (the level beyond what the tide model already carries).
-struct SlowTerm<'a> {
-    source: &'a SeaLevelSource,
-    tide_mean: f64,
-}
-
-impl<'a> SlowTerm<'a> {
-    fn new(source: &'a SeaLevelSource, tide_mean: f64) -> Self {
-        Self { source, tide_mean }
-    }
-
-    fn at(&mut self, year: f64) -> Result<f64, WaterError> {
-        Ok(self.source.level_at(year)?.value - self.tide_mean)
-    }
-}
-
-/// The weather state before a season: the mean residual anomaly of the lead-in days (slow
-/// term and ENSO effect removed) and the MJO's RMM components on the day before.
-#[derive(Debug, Clone, Copy, PartialEq, Default)]
-pub(crate) struct Lead {
-    pub(crate) anomaly: Option<f64>,
-    pub(crate) rmm: Option<(f64, f64)>,
+fn slow_term(source: &SeaLevelSource, tide_mean: f64, year: f64) -> Result<f64, WaterError> {
+    Ok(source.level_at(year)?.value - tide_mean)
 }
 
 /// Lead-in days with a residual needed for its mean anomaly to count.
 const MIN_LEAD_DAYS: usize = 5;
 
-fn lead_state(
+/// The weather state before a season: the mean residual anomaly of its lead-in days (slow
+/// term and ENSO effect removed), `None` with too few observed days.
+fn lead_anomaly(
     season: &SeasonWater,
-    slow: &mut SlowTerm<'_>,
+    sea_level: &SeaLevelSource,
+    tide_mean: f64,
     enso_coefficient: f64,
     uses_enso: bool,
-) -> Result<Lead, WaterError> {
+) -> Result<Option<f64>, WaterError> {
     let mut values = Vec::new();
-    for day in &season.lead_in.days {
+    for day in &season.lead_in {
         let (Some(r), enso) = (day.residual, day.enso) else {
             continue;
         };
@@ -273,14 +260,9 @@ fn lead_state(
             (true, None) => continue,
             (false, _) => 0.0,
         };
-        values.push(r - slow.at(day.year)? - enso_coefficient * e);
+        values.push(r - slow_term(sea_level, tide_mean, day.year)? - enso_coefficient * e);
     }
-    let anomaly =
-        (values.len() >= MIN_LEAD_DAYS).then(|| values.iter().sum::<f64>() / values.len() as f64);
-    Ok(Lead {
-        anomaly,
-        rmm: season.lead_in.rmm,
-    })
+    Ok((values.len() >= MIN_LEAD_DAYS).then(|| values.iter().sum::<f64>() / values.len() as f64))
 }
 
 /// One pooled past day: its residual with the slow term and the fitted ENSO effect removed,
@@ -363,10 +345,15 @@ impl WaterFit {
         &self.params
     }
 
-    /// The lead-in state of `season` under this fit.
-    pub(crate) fn lead_of(&self, season: &SeasonWater) -> Result<Lead, WaterError> {
-        let mut slow = SlowTerm::new(&self.sea_level, self.tide_mean);
+    /// The lead-in anomaly of `season` under this fit.
+    pub(crate) fn lead_of(&self, season: &SeasonWater) -> Result<Option<f64>, WaterError> {
         let b = self.enso_effect().map_or(0.0, |(b, _)| b);
-        lead_state(season, &mut slow, b, self.params.columns.enso)
+        lead_anomaly(
+            season,
+            &self.sea_level,
+            self.tide_mean,
+            b,
+            self.params.columns.enso,
+        )
     }
 }

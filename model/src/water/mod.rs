@@ -34,7 +34,7 @@ pub mod persistence;
 pub mod regression;
 pub mod simulate;
 
-pub use days::{DayDrivers, DayGrid, LeadIn, SeasonWater, WaterDay, season_days};
+pub use days::{DayDrivers, DayGrid, SeasonWater, WaterDay, season_days};
 pub use engine::{Columns, WaterConfig, WaterFit, WaterParams};
 pub use gauge::{GaugeWater, WaterReport, enso_at_issue};
 pub use persistence::Persistence;

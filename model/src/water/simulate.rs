@@ -128,7 +128,7 @@ pub fn simulate(
     ];
     let continue_block = 1.0 - 1.0 / fit.block_days;
     let persistence = fit.persistence;
-    let target_lead = match (persistence, fit.lead_of(plan.season)?.anomaly) {
+    let target_lead = match (persistence, fit.lead_of(plan.season)?) {
         (Some(p), Some(a)) => Some((p, a - p.mean_anomaly)),
         _ => None,
     };

@@ -142,80 +142,55 @@ pub async fn upload_gauge(app: &Router, id: &str) {
 
 /// Loopback helpers: one raw HTTP/1.1 exchange on a real socket.
 pub mod socket {
-    use std::io::{Read, Write};
-    use std::net::{SocketAddr, TcpStream};
+    use std::net::SocketAddr;
     use std::sync::Arc;
     use std::time::Duration;
 
     use tidetally_server::AppState;
+    use tidetally_test_support::http::{self, HttpAnswer};
 
-    /// A parsed answer from the socket.
+    /// How long a reply may be silent.
+    const TIMEOUT: Duration = Duration::from_secs(60);
+
+    /// An answer from the socket, its body as text (the shared client's answer).
     pub struct Reply {
         pub status: u16,
         pub head: String,
         pub body: String,
+        answer: HttpAnswer,
+    }
+
+    impl From<HttpAnswer> for Reply {
+        fn from(answer: HttpAnswer) -> Self {
+            Reply {
+                status: answer.status,
+                head: answer.head.clone(),
+                body: answer.text(),
+                answer,
+            }
+        }
     }
 
     impl Reply {
         pub fn json(&self) -> serde_json::Value {
-            serde_json::from_str(&self.body)
-                .unwrap_or_else(|e| panic!("not JSON ({e}): {} {}", self.head, self.body))
+            self.answer.json()
         }
 
         pub fn header(&self, name: &str) -> Option<String> {
-            let wanted = format!("{}:", name.to_ascii_lowercase());
-            self.head.lines().find_map(|l| {
-                l.to_ascii_lowercase()
-                    .starts_with(&wanted)
-                    .then(|| l[wanted.len()..].trim().to_owned())
-            })
+            self.answer.header(name)
         }
     }
 
-    /// Sends `raw` bytes and reads until the server closes (answers with `Connection: close`).
+    /// Sends `raw` bytes and reads the answer.
     pub fn exchange(addr: SocketAddr, raw: &[u8]) -> Reply {
-        let mut stream = TcpStream::connect(addr).expect("connect");
-        stream
-            .set_read_timeout(Some(Duration::from_secs(60)))
-            .expect("timeout");
-        stream.write_all(raw).expect("write");
-        let mut bytes = Vec::new();
-        let _ = stream.read_to_end(&mut bytes);
-        parse(&bytes)
+        http::exchange(addr, raw, TIMEOUT)
+            .unwrap_or_else(|e| panic!("no answer from {addr}: {e}"))
+            .into()
     }
 
     /// Parses a whole HTTP/1.1 response (chunked bodies joined).
     pub fn parse(bytes: &[u8]) -> Reply {
-        let text = String::from_utf8_lossy(bytes).into_owned();
-        let (head, body) = text.split_once("\r\n\r\n").unwrap_or((text.as_str(), ""));
-        let status = head
-            .split(' ')
-            .nth(1)
-            .and_then(|s| s.parse().ok())
-            .unwrap_or(0);
-        let body = if head
-            .to_ascii_lowercase()
-            .contains("transfer-encoding: chunked")
-        {
-            let mut out = String::new();
-            let mut rest = body;
-            while let Some((size, tail)) = rest.split_once("\r\n") {
-                let n = usize::from_str_radix(size.trim(), 16).unwrap_or(0);
-                if n == 0 || tail.len() < n {
-                    break;
-                }
-                out.push_str(&tail[..n]);
-                rest = tail.get(n + 2..).unwrap_or("");
-            }
-            out
-        } else {
-            body.to_owned()
-        };
-        Reply {
-            status,
-            head: head.to_owned(),
-            body,
-        }
+        http::parse(bytes).into()
     }
 
     /// One request with `Connection: close`; `token` adds `Authorization: Bearer`.
@@ -226,16 +201,10 @@ pub mod socket {
         token: Option<&str>,
         body: &[u8],
     ) -> Reply {
-        let auth = token
-            .map(|t| format!("Authorization: Bearer {t}\r\n"))
-            .unwrap_or_default();
-        let mut raw = format!(
-            "{method} {path} HTTP/1.1\r\nHost: {addr}\r\n{auth}Content-Length: {}\r\nConnection: close\r\n\r\n",
-            body.len()
-        )
-        .into_bytes();
-        raw.extend_from_slice(body);
-        exchange(addr, &raw)
+        let auth = token.map(|t| format!("Bearer {t}"));
+        let headers: Vec<(&str, &str)> =
+            auth.iter().map(|a| ("Authorization", a.as_str())).collect();
+        http::request(addr, method, path, &headers, body, TIMEOUT).into()
     }
 
     /// Async wrapper of [`request`] (the client runs on a blocking thread).

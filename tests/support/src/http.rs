@@ -29,6 +29,14 @@ impl HttpAnswer {
     pub fn text(&self) -> String {
         String::from_utf8_lossy(&self.body).into_owned()
     }
+
+    /// The value of header `name` (any case), if present.
+    pub fn header(&self, name: &str) -> Option<String> {
+        let wanted = format!("{}:", name.to_ascii_lowercase());
+        self.head
+            .lines()
+            .find_map(|l| l.strip_prefix(&wanted).map(|v| v.trim().to_owned()))
+    }
 }
 
 /// One request: `headers` are sent as given (with `Host`, `Content-Length` and
@@ -41,28 +49,38 @@ pub fn request(
     body: &[u8],
     timeout: Duration,
 ) -> HttpAnswer {
-    let mut stream = TcpStream::connect(addr).unwrap_or_else(|e| panic!("connect {addr}: {e}"));
-    stream
-        .set_read_timeout(Some(timeout))
-        .expect("read timeout");
-    let mut head = format!("{method} {path} HTTP/1.1\r\nHost: {addr}\r\n");
+    let mut raw = format!("{method} {path} HTTP/1.1\r\nHost: {addr}\r\n");
     for (name, value) in headers {
-        head.push_str(&format!("{name}: {value}\r\n"));
+        raw.push_str(&format!("{name}: {value}\r\n"));
     }
-    head.push_str(&format!(
+    raw.push_str(&format!(
         "Content-Length: {}\r\nConnection: close\r\n\r\n",
         body.len()
     ));
-    stream.write_all(head.as_bytes()).expect("write head");
-    stream.write_all(body).expect("write body");
-    let raw = read_answer(&mut stream)
-        .unwrap_or_else(|e| panic!("{method} {path} on {addr}: no answer ({e})"));
+    let mut raw = raw.into_bytes();
+    raw.extend_from_slice(body);
+    exchange(addr, &raw, timeout)
+        .unwrap_or_else(|e| panic!("{method} {path} on {addr}: no answer ({e})"))
+}
+
+/// Sends `raw` bytes as they are (a hand-made or malformed request) and reads one answer;
+/// reading gives up after `timeout` of silence.
+pub fn exchange(addr: SocketAddr, raw: &[u8], timeout: Duration) -> std::io::Result<HttpAnswer> {
+    let mut stream = TcpStream::connect(addr)?;
+    stream.set_read_timeout(Some(timeout))?;
+    stream.write_all(raw)?;
+    let answer = read_answer(&mut stream)?;
+    Ok(parse(&answer))
+}
+
+/// Parses a whole answer read from a socket (a status of 0 when there is none).
+pub fn parse(raw: &[u8]) -> HttpAnswer {
     let split = raw
         .windows(4)
         .position(|w| w == b"\r\n\r\n")
-        .expect("a header block");
+        .unwrap_or(raw.len());
     let head = String::from_utf8_lossy(&raw[..split]).to_ascii_lowercase();
-    let mut body = raw[split + 4..].to_vec();
+    let mut body = raw.get(split + 4..).unwrap_or_default().to_vec();
     if head.contains("transfer-encoding: chunked") {
         body = dechunk(&body);
     }
@@ -70,7 +88,7 @@ pub fn request(
         .split(' ')
         .nth(1)
         .and_then(|s| s.parse().ok())
-        .expect("a status code");
+        .unwrap_or(0);
     HttpAnswer { status, head, body }
 }
 
