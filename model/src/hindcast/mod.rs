@@ -34,7 +34,7 @@ pub use report::{
     CaseRecord, DriverAtIssue, EngineScore, ForecastMean, GaugeHindcast, NotRun, OptionsReport,
     SchemeHindcast, SeasonHindcast, SkippedCase, SystemFamily,
 };
-pub use run::hindcast_season;
+pub use run::{hindcast_season, hindcast_season_under};
 pub use schemes::{DEFAULT_MIN_TRAINING, DEFAULT_NEIGHBOUR_YEARS, Scheme};
 pub use scoring::{
     BinReport, BrierReport, ModelScores, RELIABILITY_BINS, RocPointReport, RocReport, SediReport,

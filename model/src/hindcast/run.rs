@@ -50,7 +50,8 @@ struct CaseContext<'a> {
     systems: &'a [CountSystem],
     water: Option<&'a WaterSystem<'a>>,
     enso_series: Option<&'a EnsoSeries>,
-    enso: EnsoKnowledge,
+    /// The ENSO treatments each case is forecast under (its refits shared by all).
+    knowledge: &'a [EnsoKnowledge],
     scheme: Scheme,
     scheme_number: u64,
     options: &'a HindcastOptions,
@@ -102,6 +103,22 @@ pub fn hindcast_season(
     setup: &HindcastSetup<'_>,
     options: &HindcastOptions,
 ) -> Result<SeasonHindcast, HindcastError> {
+    let mut one = hindcast_season_under(setup, options, &[options.concurrent_enso])?;
+    Ok(one.remove(0))
+}
+
+/// As [`hindcast_season`], once for each of `treatments` of the season's own ENSO (in order;
+/// `options.concurrent_enso` is not used). Every case is refitted once, the count models and
+/// the water engine alike, and forecast under each treatment: the treatments differ only in
+/// how the forecast knows ENSO, so each report is what a separate run would give.
+///
+/// # Errors
+/// As [`hindcast_season`].
+pub fn hindcast_season_under(
+    setup: &HindcastSetup<'_>,
+    options: &HindcastOptions,
+    treatments: &[ConcurrentEnso],
+) -> Result<Vec<SeasonHindcast>, HindcastError> {
     let bootstrap = check_options(options)?;
     let mut notes = Vec::new();
     let full = full_design(setup, &mut notes)?;
@@ -115,22 +132,12 @@ pub fn hindcast_season(
             .collect(),
     });
     let uses_enso = setup.predictors.contains(&Predictor::Enso);
-    let enso = EnsoKnowledge {
-        treatment: options.concurrent_enso,
-        count_concurrent: setup.enso_timing == EnsoTiming::Concurrent && uses_enso,
-    };
-    let perfect_enso = options.concurrent_enso == ConcurrentEnso::Observed
-        && (enso.count_concurrent
-            || water
-                .as_ref()
-                .is_some_and(|w| w.gauge.config.params().columns.enso));
-    if perfect_enso {
-        notes.push(PERFECT_ENSO_CAVEAT.trim_start().to_owned());
-    }
-    let issue_time = setup
-        .predictors
+    let knowledge: Vec<EnsoKnowledge> = treatments
         .iter()
-        .map(|&p| issue_rule(p, setup.enso_timing, options.concurrent_enso))
+        .map(|&treatment| EnsoKnowledge {
+            treatment,
+            count_concurrent: setup.enso_timing == EnsoTiming::Concurrent && uses_enso,
+        })
         .collect();
     let mut families: Vec<SystemFamily> = systems
         .iter()
@@ -145,76 +152,98 @@ pub fn hindcast_season(
             family: None,
         });
     }
-    let mut schemes = Vec::new();
+    let mut schemes: Vec<Vec<SchemeHindcast>> = treatments.iter().map(|_| Vec::new()).collect();
     for (scheme_number, scheme) in options.schemes().into_iter().enumerate() {
         let context = CaseContext {
             systems: &systems,
             water: water.as_ref(),
             enso_series: setup.enso,
-            enso,
+            knowledge: &knowledge,
             scheme,
             scheme_number: scheme_number as u64,
             options,
         };
-        schemes.push(run_scheme(&context, setup.exceed_days, &bootstrap)?);
+        let reports = run_scheme(&context, setup.exceed_days, &bootstrap)?;
+        for (list, report) in schemes.iter_mut().zip(reports) {
+            list.push(report);
+        }
     }
     let has_trend = systems.iter().any(|s| s.kind == ModelKind::TrendOnly);
-    let overall = |model: ModelKind| -> Vec<VerdictReport> {
-        [ModelKind::Climatology, ModelKind::TrendOnly]
-            .into_iter()
-            .filter(|&r| r != ModelKind::TrendOnly || has_trend)
-            .map(|reference| {
-                let entries: Vec<(Scheme, &SkillEntry)> = schemes
-                    .iter()
-                    .filter_map(|s| {
-                        s.skill_of(model, reference)
-                            .and_then(|r| r.entry(HEADLINE_SCORE))
-                            .map(|e| (s.scheme, e))
-                    })
-                    .collect();
-                let mut report = verdict::overall_verdict(
-                    setup.gauge_name,
-                    &full.season_name,
-                    reference,
-                    &entries,
-                );
-                if model == ModelKind::Water {
-                    report.sentence =
+    let water_enso = water
+        .as_ref()
+        .is_some_and(|w| w.gauge.config.params().columns.enso);
+    Ok(knowledge
+        .iter()
+        .zip(schemes)
+        .map(|(enso, schemes)| {
+            let perfect_enso =
+                enso.treatment == ConcurrentEnso::Observed && (enso.count_concurrent || water_enso);
+            let mut notes = notes.clone();
+            if perfect_enso {
+                notes.push(PERFECT_ENSO_CAVEAT.trim_start().to_owned());
+            }
+            let overall = |model: ModelKind| -> Vec<VerdictReport> {
+                [ModelKind::Climatology, ModelKind::TrendOnly]
+                    .into_iter()
+                    .filter(|&r| r != ModelKind::TrendOnly || has_trend)
+                    .map(|reference| {
+                        let entries: Vec<(Scheme, &SkillEntry)> = schemes
+                            .iter()
+                            .filter_map(|s| {
+                                s.skill_of(model, reference)
+                                    .and_then(|r| r.entry(HEADLINE_SCORE))
+                                    .map(|e| (s.scheme, e))
+                            })
+                            .collect();
+                        let mut report = verdict::overall_verdict(
+                            setup.gauge_name,
+                            &full.season_name,
+                            reference,
+                            &entries,
+                        );
+                        if model == ModelKind::Water {
+                            report.sentence =
+                                report
+                                    .sentence
+                                    .replacen("outlooks", "water-level outlooks", 1);
+                        }
+                        if perfect_enso {
+                            report.sentence.push_str(PERFECT_ENSO_CAVEAT);
+                        }
                         report
-                            .sentence
-                            .replacen("outlooks", "water-level outlooks", 1);
-                }
-                if perfect_enso {
-                    report.sentence.push_str(PERFECT_ENSO_CAVEAT);
-                }
-                report
-            })
-            .collect()
-    };
-    let verdicts = overall(ModelKind::Drivers);
-    let water_verdicts = if water.is_some() {
-        overall(ModelKind::Water)
-    } else {
-        Vec::new()
-    };
-    let engines = [ModelKind::Drivers, ModelKind::Water]
-        .into_iter()
-        .filter_map(|model| engine_score(&schemes, model))
-        .collect();
-    Ok(SeasonHindcast {
-        season_name: full.season_name.clone(),
-        predictors: setup.predictors.to_vec(),
-        issue_time,
-        families,
-        usable_seasons: full.rows.len(),
-        left_out: full.left_out.clone(),
-        schemes,
-        verdicts,
-        water_verdicts,
-        enso: options.concurrent_enso,
-        engines,
-        notes,
-    })
+                    })
+                    .collect()
+            };
+            let verdicts = overall(ModelKind::Drivers);
+            let water_verdicts = if water.is_some() {
+                overall(ModelKind::Water)
+            } else {
+                Vec::new()
+            };
+            let engines = [ModelKind::Drivers, ModelKind::Water]
+                .into_iter()
+                .filter_map(|model| engine_score(&schemes, model))
+                .collect();
+            SeasonHindcast {
+                season_name: full.season_name.clone(),
+                predictors: setup.predictors.to_vec(),
+                issue_time: setup
+                    .predictors
+                    .iter()
+                    .map(|&p| issue_rule(p, setup.enso_timing, enso.treatment))
+                    .collect(),
+                families: families.clone(),
+                usable_seasons: full.rows.len(),
+                left_out: full.left_out.clone(),
+                schemes,
+                verdicts,
+                water_verdicts,
+                enso: enso.treatment,
+                engines,
+                notes,
+            }
+        })
+        .collect())
 }
 
 /// The design with the sea level added when the model lacks it (for the trend-only
@@ -349,28 +378,35 @@ enum CaseOutcome {
     Skipped(SkippedCase),
 }
 
+/// Runs every case of a scheme once, and scores it under each ENSO treatment of the context
+/// (one report per treatment, in order).
 fn run_scheme(
     context: &CaseContext<'_>,
     exceed_days: &[u32],
     bootstrap: &Bootstrap,
-) -> Result<SchemeHindcast, HindcastError> {
+) -> Result<Vec<SchemeHindcast>, HindcastError> {
     let systems = context.systems;
     let scheme = context.scheme;
     // Every system's design has the same rows in the same order.
     let rows = &systems[0].design.rows;
-    let outcomes: Vec<Option<CaseOutcome>> = (0..rows.len())
+    let outcomes: Vec<Option<Vec<CaseOutcome>>> = (0..rows.len())
         .into_par_iter()
         .map(|target| {
             let training = scheme.training(rows, target)?;
             Some(forecast_case(context, target, &training))
         })
         .collect();
-    let mut cases = Vec::new();
-    let mut skipped = Vec::new();
-    for outcome in outcomes.into_iter().flatten() {
-        match outcome {
-            CaseOutcome::Forecast(c) => cases.push(c),
-            CaseOutcome::Skipped(s) => skipped.push(s),
+    let mut per_treatment: Vec<(Vec<CaseRecord>, Vec<SkippedCase>)> = context
+        .knowledge
+        .iter()
+        .map(|_| Default::default())
+        .collect();
+    for case in outcomes.into_iter().flatten() {
+        for (outcome, (cases, skipped)) in case.into_iter().zip(&mut per_treatment) {
+            match outcome {
+                CaseOutcome::Forecast(c) => cases.push(c),
+                CaseOutcome::Skipped(s) => skipped.push(s),
+            }
         }
     }
     let mut kinds: Vec<(ModelKind, Option<Family>)> =
@@ -378,6 +414,23 @@ fn run_scheme(
     if context.water.is_some() {
         kinds.push((ModelKind::Water, None));
     }
+    per_treatment
+        .into_iter()
+        .map(|(cases, skipped)| {
+            score_scheme(scheme, cases, skipped, &kinds, exceed_days, bootstrap)
+        })
+        .collect()
+}
+
+/// The scores, skill intervals and verdicts of one scheme's cases.
+fn score_scheme(
+    scheme: Scheme,
+    cases: Vec<CaseRecord>,
+    skipped: Vec<SkippedCase>,
+    kinds: &[(ModelKind, Option<Family>)],
+    exceed_days: &[u32],
+    bootstrap: &Bootstrap,
+) -> Result<SchemeHindcast, HindcastError> {
     let mut report = SchemeHindcast {
         scheme,
         rule: scheme.rule(),
@@ -401,10 +454,10 @@ fn run_scheme(
         observed: report.cases.iter().map(|c| c.observed).collect(),
         pmfs,
     };
-    let scored = scoring::score(&set, &kinds, exceed_days)?;
+    let scored = scoring::score(&set, kinds, exceed_days)?;
     let skill = scoring::skill(
         &scored,
-        &kinds,
+        kinds,
         &[
             scoring::Comparison {
                 models: &[ModelKind::Drivers, ModelKind::TrendOnly, ModelKind::Water],
@@ -445,7 +498,24 @@ fn stream(seed: u64, scheme: u64, case: usize, system: u64) -> ChaCha8Rng {
     rng
 }
 
-fn forecast_case(context: &CaseContext<'_>, target: usize, training: &[usize]) -> CaseOutcome {
+/// A case's refits on its training seasons, shared by every ENSO treatment (the treatments
+/// differ only in how the forecast knows the season's ENSO, not in what is fitted).
+struct CaseFits {
+    /// Each count system's refit, or why it failed.
+    count: Vec<Result<refit::Refit, String>>,
+    /// The water engine's fit with its target and training seasons, or why it failed.
+    water: Option<Result<WaterCase, String>>,
+}
+
+/// The water engine's part of a case.
+struct WaterCase {
+    fit: water::WaterFit,
+    target: usize,
+    train: Vec<usize>,
+}
+
+/// Forecasts one case under each ENSO treatment of the context, in order.
+fn forecast_case(context: &CaseContext<'_>, target: usize, training: &[usize]) -> Vec<CaseOutcome> {
     let CaseContext {
         systems,
         options,
@@ -460,7 +530,11 @@ fn forecast_case(context: &CaseContext<'_>, target: usize, training: &[usize]) -
         })
     };
     if training.is_empty() {
-        return skip("no training season".to_owned());
+        return context
+            .knowledge
+            .iter()
+            .map(|_| skip("no training season".to_owned()))
+            .collect();
     }
     let training_seasons: Vec<Season> = training
         .iter()
@@ -470,71 +544,100 @@ fn forecast_case(context: &CaseContext<'_>, target: usize, training: &[usize]) -
     let scenario: Vec<usize> = (0..options.draws)
         .map(|_| training[scenario_rng.gen_range(0..training.len())])
         .collect();
+    let fits = CaseFits {
+        count: systems
+            .iter()
+            .map(|system| count_fit(system, training))
+            .collect(),
+        water: context
+            .water
+            .map(|water| water_fit(context.scheme, water, target, training)),
+    };
+    context
+        .knowledge
+        .iter()
+        .map(|&enso| {
+            forecast_case_under(
+                context,
+                enso,
+                target,
+                training,
+                &training_seasons,
+                &scenario,
+                &fits,
+            )
+            .unwrap_or_else(skip)
+        })
+        .collect()
+}
+
+fn forecast_case_under(
+    context: &CaseContext<'_>,
+    enso: EnsoKnowledge,
+    target: usize,
+    training: &[usize],
+    training_seasons: &[Season],
+    scenario: &[usize],
+    fits: &CaseFits,
+) -> Result<CaseOutcome, String> {
+    let CaseContext {
+        systems,
+        options,
+        scheme_number,
+        ..
+    } = *context;
+    let first = &systems[0].design.rows[target];
     // ENSO as known at issue time, shared by both engines of the case.
-    let needs_at_issue = context.enso.count_source() == EnsoFrom::AtIssue
-        || context.enso.water_source() == EnsoFrom::AtIssue;
+    let needs_at_issue =
+        enso.count_source() == EnsoFrom::AtIssue || enso.water_source() == EnsoFrom::AtIssue;
     let at_issue: Vec<f64> = if needs_at_issue {
-        let Some(series) = context.enso_series else {
-            return skip("ENSO at issue time needs the gauge's ENSO index".to_owned());
-        };
+        let series = context
+            .enso_series
+            .ok_or_else(|| "ENSO at issue time needs the gauge's ENSO index".to_owned())?;
         let mut rng = stream(options.seed, scheme_number, target, ENSO_STREAM);
-        match water::enso_at_issue(
+        water::enso_at_issue(
             series,
             &first.season,
-            &training_seasons,
+            training_seasons,
             options.draws,
             &mut rng,
-        ) {
-            Ok(v) => v,
-            Err(e) => return skip(e.to_string()),
-        }
+        )
+        .map_err(|e| e.to_string())?
     } else {
         Vec::new()
     };
     let mut means = Vec::with_capacity(systems.len() + 1);
     let mut pmfs = Vec::with_capacity(systems.len() + 1);
-    for system in systems {
-        match count_case(context, system, target, training, &scenario, &at_issue) {
-            Ok(pmf) => {
-                means.push(ForecastMean {
-                    model: system.kind,
-                    mean: crate::verify::forecast_mean(&pmf),
-                });
-                pmfs.push(pmf);
-            }
-            Err(reason) => return skip(reason),
-        }
+    for (system, fit) in systems.iter().zip(&fits.count) {
+        let model = fit.as_ref().map_err(Clone::clone)?;
+        let pmf = count_case(context, enso, system, model, target, scenario, &at_issue)?;
+        means.push(ForecastMean {
+            model: system.kind,
+            mean: crate::verify::forecast_mean(&pmf),
+        });
+        pmfs.push(pmf);
     }
-    if let Some(water) = context.water {
-        match water_case(context, water, target, training, &at_issue) {
-            Ok(pmf) => {
-                means.push(ForecastMean {
-                    model: ModelKind::Water,
-                    mean: crate::verify::forecast_mean(&pmf),
-                });
-                pmfs.push(pmf);
-            }
-            Err(reason) => return skip(reason),
-        }
+    if let (Some(water), Some(fit)) = (context.water, &fits.water) {
+        let case = fit.as_ref().map_err(Clone::clone)?;
+        let pmf = water_case(context, enso, water, case, target, &at_issue)?;
+        means.push(ForecastMean {
+            model: ModelKind::Water,
+            mean: crate::verify::forecast_mean(&pmf),
+        });
+        pmfs.push(pmf);
     }
-    CaseOutcome::Forecast(CaseRecord {
+    Ok(CaseOutcome::Forecast(CaseRecord {
         season: first.season.label(),
         observed: first.flood_days,
         observed_days: first.observed_days,
         training_seasons: training.len(),
         means,
         pmfs,
-    })
+    }))
 }
 
-fn count_case(
-    context: &CaseContext<'_>,
-    system: &CountSystem,
-    target: usize,
-    training: &[usize],
-    scenario: &[usize],
-    at_issue: &[f64],
-) -> Result<Vec<f64>, String> {
+/// A count system refitted on a case's training seasons.
+fn count_fit(system: &CountSystem, training: &[usize]) -> Result<refit::Refit, String> {
     let design = &system.design;
     let sub = Design {
         season_name: design.season_name.clone(),
@@ -546,9 +649,20 @@ fn count_case(
         Family::Poisson => FamilyRequest::Poisson,
         Family::Negbin => FamilyRequest::Negbin,
     };
-    let model = refit::refit(&sub, request, &system.start)
-        .map_err(|e| format!("{:?} refit: {e}", system.kind))?;
-    let enso_from = context.enso.count_source();
+    refit::refit(&sub, request, &system.start).map_err(|e| format!("{:?} refit: {e}", system.kind))
+}
+
+fn count_case(
+    context: &CaseContext<'_>,
+    enso: EnsoKnowledge,
+    system: &CountSystem,
+    model: &refit::Refit,
+    target: usize,
+    scenario: &[usize],
+    at_issue: &[f64],
+) -> Result<Vec<f64>, String> {
+    let design = &system.design;
+    let enso_from = enso.count_source();
     let sources = predict::sources(&model.predictors, &design.predictors, |p| match p {
         Predictor::Enso => match enso_from {
             EnsoFrom::Target => predict::SourceKind::Target,
@@ -577,23 +691,24 @@ fn count_case(
     .map_err(|e| e.to_string())
 }
 
-fn water_case(
-    context: &CaseContext<'_>,
+/// The water engine fitted on a case's training seasons (the sea-level trend refitted
+/// without the held-out months).
+fn water_fit(
+    scheme: Scheme,
     water: &WaterSystem<'_>,
     target: usize,
     training: &[usize],
-    at_issue: &[f64],
-) -> Result<Vec<f64>, String> {
+) -> Result<WaterCase, String> {
     let gauge = water.gauge;
     let target_index = water.season_of_row[target]
         .ok_or_else(|| "the water engine has no days of this season".to_owned())?;
-    let target_season = &gauge.seasons[target_index];
+    let usable = gauge.usable();
     let train: Vec<usize> = training
         .iter()
         .filter_map(|&i| water.season_of_row[i])
-        .filter(|i| gauge.usable().contains(i))
+        .filter(|i| usable.contains(i))
         .collect();
-    let (first_out, last_out) = held_out_span(context.scheme, &target_season.season);
+    let (first_out, last_out) = held_out_span(scheme, &gauge.seasons[target_index].season);
     let months = |m: &MonthlyMeanLevel| {
         let Some(first_of_month) = chrono::NaiveDate::from_ymd_opt(m.year, m.month, 1) else {
             return false;
@@ -606,8 +721,25 @@ fn water_case(
     let fit = gauge
         .fit_on(&train, months)
         .map_err(|e| format!("water engine: {e}"))?;
-    let enso: Vec<f64> = if gauge.config.params().columns.enso {
-        match context.enso.water_source() {
+    Ok(WaterCase {
+        fit,
+        target: target_index,
+        train,
+    })
+}
+
+fn water_case(
+    context: &CaseContext<'_>,
+    enso: EnsoKnowledge,
+    water: &WaterSystem<'_>,
+    case: &WaterCase,
+    target: usize,
+    at_issue: &[f64],
+) -> Result<Vec<f64>, String> {
+    let gauge = water.gauge;
+    let target_season = &gauge.seasons[case.target];
+    let enso_values: Vec<f64> = if gauge.config.params().columns.enso {
+        match enso.water_source() {
             EnsoFrom::Target => {
                 let series = context
                     .enso_series
@@ -622,7 +754,7 @@ fn water_case(
                 let series = context
                     .enso_series
                     .ok_or_else(|| "the water engine's ENSO needs the index".to_owned())?;
-                train
+                case.train
                     .iter()
                     .filter_map(|&i| {
                         series
@@ -643,12 +775,12 @@ fn water_case(
         ModelKind::Water.index() as u64,
     );
     let simulated = water::simulate(
-        &fit,
+        &case.fit,
         SeasonPlan {
             season: target_season,
             observed_only: true,
         },
-        &enso,
+        &enso_values,
         context.options.water_simulations,
         &mut rng,
     )

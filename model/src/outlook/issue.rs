@@ -81,19 +81,19 @@ pub fn hindcasts(
     let uses_own_enso = setup.predictors.contains(&Predictor::Enso)
         && (setup.enso_timing == crate::drivers::EnsoTiming::Concurrent
             || setup.water.is_some_and(|w| w.config.params().columns.enso));
-    let at_issue = HindcastOptions {
-        concurrent_enso: ConcurrentEnso::AtIssue,
-        ..options.clone()
+    // One run for both treatments: every case's refits are shared.
+    let treatments: &[ConcurrentEnso] = if uses_own_enso {
+        &[ConcurrentEnso::AtIssue, ConcurrentEnso::Observed]
+    } else {
+        &[ConcurrentEnso::AtIssue]
     };
-    let perfect = HindcastOptions {
-        concurrent_enso: ConcurrentEnso::Observed,
-        ..options.clone()
-    };
-    let (a, p) = rayon::join(
-        || hindcast::hindcast_season(setup, &at_issue),
-        || uses_own_enso.then(|| hindcast::hindcast_season(setup, &perfect).ok()),
-    );
-    (a, p.flatten())
+    match hindcast::hindcast_season_under(setup, options, treatments) {
+        Ok(mut reports) => {
+            let perfect = (reports.len() > 1).then(|| reports.remove(1));
+            (Ok(reports.remove(0)), perfect)
+        }
+        Err(e) => (Err(e), None),
+    }
 }
 
 /// Issues the outlook of `target` at a prepared gauge.
