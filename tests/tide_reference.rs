@@ -5,6 +5,11 @@
 //! ranges); Doodson (1921) (argument numbers); Meeus (1998), *Astronomical Algorithms*, 2nd ed.
 //! (mean longitudes at J2000); utide 0.4.0 from PyPI (fixture made by
 //! `tests/reference/tide_utide.py`, versions recorded in the fixture).
+//!
+//! The tabulated values below (constituent speeds, Doodson numbers, the mean longitudes at
+//! J2000, the node's dates and Schureman's nodal maxima) are quoted from memory of those
+//! publications; none was copied from a copy consulted here. The utide fixture is the one
+//! check made against an outside source on this machine.
 
 use std::path::PathBuf;
 
@@ -68,6 +73,7 @@ fn angle_diff(a: f64, b: f64) -> f64 {
 #[test]
 fn constituent_speeds_and_doodson_numbers_match_schureman() {
     // Schureman (1958) Table 2 speeds (deg/h, 7 decimals); Doodson numbers after Doodson (1921).
+    // Both recalled from memory.
     let table = [
         ("M2", 28.984_104_2, "255.555"),
         ("S2", 30.000_000_0, "273.555"),
@@ -99,7 +105,7 @@ fn constituent_speeds_and_doodson_numbers_match_schureman() {
 
 #[test]
 fn mean_longitudes_at_j2000_match_meeus() {
-    // Meeus (1998): at J2000.0 (2000-01-01 12:00 TT) the sun's mean longitude is 280.46646 deg,
+    // Meeus (1998), values recalled from memory: at J2000.0 (2000-01-01 12:00 TT) the sun's mean longitude is 280.46646 deg,
     // the moon's 218.31645 deg, the node's 125.04452 deg. TT - UT (~64 s) moves the moon by
     // 0.01 deg, hence the tolerance.
     let astro = Astro::at(unix(2000, 1, 1, 12, 0, 0) as f64);

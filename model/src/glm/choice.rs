@@ -2,7 +2,8 @@
 //! boundary-corrected likelihood-ratio test (Cameron and Trivedi, *Regression Analysis of
 //! Count Data*, 2nd ed. 2013, section 3.4: under the null theta^-1 = 0 sits on the boundary,
 //! so the statistic is a 50:50 mixture of a point mass at zero and chi-square(1), and the
-//! p-value is half the chi-square(1) tail).
+//! p-value is half the chi-square(1) tail; the book and its section number are cited from
+//! memory).
 
 use std::str::FromStr;
 

@@ -10,6 +10,10 @@
 //! distribution, computed interval by interval as in Hersbach (2000, Weather and Forecasting
 //! 15, eqs. 24-27). When every member is an integer the two coincide: the step function is
 //! constant on each `[k, k+1)`.
+//!
+//! The papers and equation numbers here are cited from memory; none was consulted on this
+//! machine. The tests check the two forms against each other, against hand sums and against
+//! properscoring (`tests/verify_reference.rs`).
 
 use super::VerifyError;
 
@@ -83,7 +87,7 @@ mod tests {
     use crate::verify::empirical_pmf;
 
     /// Kernel form CRPS = E|X - y| - E|X - X'| / 2 (Gneiting and Raftery 2007, JASA 102,
-    /// eq. 21), an independent route to the same number.
+    /// eq. 21, cited from memory), an independent route to the same number.
     fn crps_kernel(members: &[f64], y: f64) -> f64 {
         let m = members.len() as f64;
         let first: f64 = members.iter().map(|x| (x - y).abs()).sum::<f64>() / m;

@@ -24,7 +24,7 @@
 //! of the squared difference between the forecast's and the observation's cumulative
 //! probabilities, divided by `K - 1 = 2` so that it lies in `[0, 1]`. The ranked probability
 //! skill score is `RPSS = 1 - RPS / RPS_reference` ([`super::skill_score`]); the
-//! normalisation cancels in it.
+//! normalisation cancels in it. (The papers and the textbook are cited from memory.)
 
 use super::{QUANTILE_TOLERANCE, VerifyError, empirical_pmf, validate_pmf};
 
