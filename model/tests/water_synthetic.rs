@@ -7,6 +7,10 @@
 //! daily surge (AR(1) from day to day) + small hourly noise. Only DJF seasons are written. A
 //! day floods when its highest hourly level reaches the threshold (the trade's flood-day rule,
 //! common practice).
+//!
+//! The engine under test builds each day's high water as predicted tide + projected mean sea
+//! level + a resampled past residual, the construction of Thompson et al. (2021, Nature Climate
+//! Change 11; cited from memory).
 
 use chrono::{Datelike, NaiveDate};
 use rand::{Rng, SeedableRng};
