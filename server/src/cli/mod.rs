@@ -123,8 +123,9 @@ pub struct GlmArgs {
     /// Add ln(offset column) instead of the column itself.
     #[arg(long, requires = "offset")]
     pub log_offset: bool,
-    /// Count family: poisson, negbin or auto.
-    #[arg(long)]
+    /// Count family: poisson, negbin or auto (a boundary-corrected likelihood-ratio test
+    /// picks one).
+    #[arg(long, default_value = "auto")]
     pub family: String,
 }
 
@@ -288,5 +289,38 @@ pub(crate) fn print_text(text: &str) -> anyhow::Result<()> {
     match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
         Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe => Err(err.into()),
         _ => Ok(()),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use clap::Parser;
+
+    use super::{Cli, Command};
+
+    #[test]
+    fn glm_family_defaults_to_auto_as_the_readme_shows() {
+        let cli = Cli::try_parse_from([
+            "tidetally",
+            "glm",
+            "--csv",
+            "t.csv",
+            "--response",
+            "n",
+            "--predictors",
+            "x",
+        ])
+        .expect("parses without --family");
+        let Command::Glm(args) = cli.command else {
+            panic!("parsed as another command");
+        };
+        assert_eq!(args.family, "auto");
+    }
+
+    #[test]
+    fn hindcast_offers_no_csv_flag() {
+        let err = Cli::try_parse_from(["tidetally", "hindcast", "--gauge", "g.toml", "--csv"])
+            .expect_err("hindcast has no --csv");
+        assert_eq!(err.kind(), clap::error::ErrorKind::UnknownArgument);
     }
 }
