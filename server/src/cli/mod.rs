@@ -15,9 +15,12 @@ mod serve;
 mod tide;
 mod tide_risk;
 
+/// The season label convention, stated in `--help` and on every `--season` option.
+pub const SEASON_LABELS: &str = "A season label is `YEAR-NAME` with YEAR the year of the season's first month: `1995-DJF` is December 1995 to February 1996.";
+
 /// tidetally: seasonal outlooks of minor coastal flood days at tide gauges.
 #[derive(Debug, Parser)]
-#[command(name = "tidetally", version, about)]
+#[command(name = "tidetally", version, about, after_help = SEASON_LABELS)]
 pub struct Cli {
     /// The command to run.
     #[command(subcommand)]
@@ -178,7 +181,7 @@ pub struct TideRiskArgs {
     #[arg(long)]
     pub gauge: PathBuf,
     /// The season, e.g. `2026-DJF` (default: the first season after the record ends).
-    #[arg(long)]
+    #[arg(long, long_help = format!("The season, e.g. 2026-DJF (default: the first season after the record ends). {SEASON_LABELS}"))]
     pub season: Option<String>,
     /// A day is a tide risk day when its predicted high water comes within this many metres
     /// of the threshold.
@@ -217,7 +220,7 @@ pub struct OutlookArgs {
     pub gauge: PathBuf,
     /// Target season label, e.g. 2026-DJF (default: the first season starting after the
     /// record's last observed day).
-    #[arg(long)]
+    #[arg(long, long_help = format!("Target season label, e.g. 2026-DJF (default: the first season starting after the record's last observed day). {SEASON_LABELS}"))]
     pub season: Option<String>,
     /// Mixture components (driver scenario x parameter draw pairs).
     #[arg(long, default_value_t = tidetally_model::outlook::DEFAULT_DRAWS)]
@@ -315,6 +318,26 @@ mod tests {
             panic!("parsed as another command");
         };
         assert_eq!(args.family, "auto");
+    }
+
+    #[test]
+    fn help_states_the_season_label_convention() {
+        use clap::CommandFactory;
+        let top = Cli::command().render_help().to_string();
+        assert!(
+            top.contains("`1995-DJF` is December 1995 to February 1996"),
+            "{top}"
+        );
+        let mut cli = Cli::command();
+        let outlook = cli
+            .find_subcommand_mut("outlook")
+            .expect("outlook command")
+            .render_long_help()
+            .to_string();
+        assert!(
+            outlook.contains("December 1995 to February 1996"),
+            "{outlook}"
+        );
     }
 
     #[test]
