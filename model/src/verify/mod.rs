@@ -24,6 +24,7 @@
 pub mod bootstrap;
 pub mod brier;
 pub mod cases;
+pub mod categories;
 pub mod crps;
 pub mod log_score;
 pub mod reliability;
@@ -37,6 +38,7 @@ pub use brier::{
     BrierDecomposition, brier_case, brier_decomposition, brier_score, exceedance_probability,
 };
 pub use cases::CaseScores;
+pub use categories::CategoryEdges;
 pub use crps::{crps_count, crps_ensemble};
 pub use log_score::{LOG_SCORE_FLOOR, absolute_error, forecast_mean, log_score};
 pub use reliability::{ProbabilityBins, ReliabilityBin, reliability_diagram};
@@ -91,6 +93,19 @@ pub enum VerifyError {
     NoCases {
         /// Which score.
         what: &'static str,
+    },
+    /// No category edge given.
+    #[error("at least one category edge is needed")]
+    NoCategoryEdges,
+    /// A category edge not above the one before it.
+    #[error("edge {index} ({edge}) must be above edge {} ({previous}): edges increase", index - 1)]
+    EdgeNotIncreasing {
+        /// Index of the edge (from 0).
+        index: usize,
+        /// Its value.
+        edge: u32,
+        /// The edge before it.
+        previous: u32,
     },
     /// Category edges out of order.
     #[error("category edges [{lower}, {upper}] must satisfy lower <= upper")]

@@ -1,10 +1,11 @@
 //! `tidetally score --input FILE`: verification scores of given count forecasts.
 //!
 //! Input JSON: `{"cases": [{"pmf": [p0, p1, ...], "observed": n}, ...], "exceed_days":
-//! [k, ...], "category_edges": [e1, e2]}`; `exceed_days` and `category_edges` may be left out.
-//! Output JSON: the mean and per-case CRPS, ranked probability score (categories `N < e1`,
-//! `e1 <= N < e2`, `N >= e2`; without `category_edges`, the terciles of the observed counts
-//! with tied edges split), logarithmic score, absolute error of the forecast mean, and for
+//! [k, ...], "category_edges": [e1, e2, ...]}`; `exceed_days` and `category_edges` may be left
+//! out. Output JSON: the mean and per-case CRPS, ranked probability score over `K` categories
+//! (any number of strictly increasing edges `e1 < e2 < ...` give `N < e1`, `e1 <= N < e2`, ...,
+//! `N >= e_last`; without `category_edges`, the terciles of the observed counts with tied edges
+//! split), logarithmic score, absolute error of the forecast mean, and for
 //! each `k` the Brier score of `P(N >= k)` with its decomposition, reliability diagram, ROC
 //! and 2x2 scores; plus the 2x2 scores of the upper-decile event of the observed counts.
 
@@ -13,7 +14,8 @@ use std::path::Path;
 use anyhow::Context;
 use serde::{Deserialize, Serialize};
 use tidetally_model::verify::{
-    self, ContingencyTable, ProbabilityBins, TercileEdges, UpperDecileEvent, VerifyError,
+    self, CategoryEdges, ContingencyTable, ProbabilityBins, TercileEdges, UpperDecileEvent,
+    VerifyError,
 };
 
 pub(super) fn run(args: super::ScoreArgs) -> anyhow::Result<()> {
@@ -31,9 +33,14 @@ fn score_file(path: &Path) -> anyhow::Result<ScoreReport> {
 /// What is wrong with a `score` input.
 #[derive(Debug, thiserror::Error)]
 pub(crate) enum ScoreInputError {
-    /// Not JSON of the expected shape (serde names line and column).
-    #[error("not a valid score input: {0}")]
-    Json(serde_json::Error),
+    /// Not JSON of the expected shape: the field's path, then serde's line and column.
+    #[error("not a valid score input: at `{path}`: {error}")]
+    Json {
+        /// Where in the document, e.g. `cases[1].pmf` (`.` for the top level).
+        path: String,
+        /// What serde said.
+        error: serde_json::Error,
+    },
     /// No cases.
     #[error("`cases` is empty: nothing to score")]
     NoCases,
@@ -76,7 +83,7 @@ struct ScoreInput {
     #[serde(default)]
     exceed_days: Vec<u32>,
     #[serde(default)]
-    category_edges: Option<[u32; 2]>,
+    category_edges: Option<Vec<u32>>,
 }
 
 /// One forecast and its observation, as written.
@@ -96,7 +103,7 @@ pub(crate) struct ScoreReport {
     crps: f64,
     /// CRPS of each case.
     crps_per_case: Vec<f64>,
-    /// Mean ranked probability score over the three categories (normalised by K - 1 = 2).
+    /// Mean ranked probability score over the categories (normalised by K - 1).
     rps: f64,
     /// RPS of each case.
     rps_per_case: Vec<f64>,
@@ -120,9 +127,11 @@ pub(crate) struct ScoreReport {
 struct CategoriesReport {
     /// `given` or `observed sample terciles`.
     source: &'static str,
-    edges: [u32; 2],
+    /// Number of categories `K` (one more than the edges).
+    count: usize,
+    edges: Vec<u32>,
     /// Share of the mass at each edge count counted in the lower category.
-    lower_shares: [f64; 2],
+    lower_shares: Vec<f64>,
 }
 
 #[derive(Debug, Serialize)]
@@ -193,7 +202,16 @@ struct Case {
 
 /// Parses and checks the input, then computes every score.
 pub(crate) fn score_text(text: &str) -> Result<ScoreReport, ScoreInputError> {
-    let input: ScoreInput = serde_json::from_str(text).map_err(ScoreInputError::Json)?;
+    let mut reader = serde_json::Deserializer::from_str(text);
+    let input: ScoreInput =
+        serde_path_to_error::deserialize(&mut reader).map_err(|e| ScoreInputError::Json {
+            path: e.path().to_string(),
+            error: e.into_inner(),
+        })?;
+    reader.end().map_err(|error| ScoreInputError::Json {
+        path: ".".into(),
+        error,
+    })?;
     if input.cases.is_empty() {
         return Err(ScoreInputError::NoCases);
     }
@@ -210,20 +228,36 @@ pub(crate) fn score_text(text: &str) -> Result<ScoreReport, ScoreInputError> {
         .map(|c| verify::crps_count(&c.pmf, c.observed))
         .collect();
 
-    let (edges, source) = match input.category_edges {
-        Some([lower, upper]) => (
-            TercileEdges::from_counts(lower, upper).map_err(ScoreInputError::Edges)?,
-            "given",
-        ),
-        None => (
-            TercileEdges::from_sample(&observed)?,
-            "observed sample terciles",
-        ),
+    let (rps_per_case, categories) = match input.category_edges {
+        Some(given) => {
+            let edges = CategoryEdges::new(given).map_err(ScoreInputError::Edges)?;
+            let scores: Vec<f64> = cases
+                .iter()
+                .map(|c| edges.rps(&c.pmf, c.observed))
+                .collect();
+            let report = CategoriesReport {
+                source: "given",
+                count: edges.categories(),
+                edges: edges.edges().to_vec(),
+                lower_shares: vec![0.0; edges.edges().len()],
+            };
+            (scores, report)
+        }
+        None => {
+            let edges = TercileEdges::from_sample(&observed)?;
+            let scores: Vec<f64> = cases
+                .iter()
+                .map(|c| edges.rps(&c.pmf, c.observed))
+                .collect();
+            let report = CategoriesReport {
+                source: "observed sample terciles",
+                count: 3,
+                edges: edges.edges().to_vec(),
+                lower_shares: edges.lower_shares().to_vec(),
+            };
+            (scores, report)
+        }
     };
-    let rps_per_case: Vec<f64> = cases
-        .iter()
-        .map(|c| edges.rps(&c.pmf, c.observed))
-        .collect();
 
     let log_score_per_case: Vec<f64> = cases
         .iter()
@@ -250,11 +284,7 @@ pub(crate) fn score_text(text: &str) -> Result<ScoreReport, ScoreInputError> {
         crps_per_case,
         rps: mean(&rps_per_case),
         rps_per_case,
-        categories: CategoriesReport {
-            source,
-            edges: edges.edges(),
-            lower_shares: edges.lower_shares(),
-        },
+        categories,
         log_score: mean(&log_score_per_case),
         log_score_floor: verify::LOG_SCORE_FLOOR,
         log_score_per_case,
@@ -452,6 +482,43 @@ mod tests {
         let edges =
             error(r#"{"cases": [{"pmf": [1.0], "observed": 0}], "category_edges": [3, 1]}"#);
         assert!(edges.contains("category_edges"), "{edges}");
+    }
+
+    #[test]
+    fn any_number_of_increasing_edges_gives_the_k_category_score() {
+        // Five categories from edges 1, 2, 4, 6; pmf over 0..=6, observed 3: cumulative
+        // forecast 0.1, 0.3, 0.7, 0.9 against 0, 0, 1, 1, so
+        // RPS = (0.01 + 0.09 + 0.09 + 0.01) / 4 = 0.05 (hand sum, Epstein 1969 definition).
+        let v = scored(
+            r#"{"cases": [{"pmf": [0.1, 0.2, 0.2, 0.2, 0.1, 0.1, 0.1], "observed": 3}],
+                "category_edges": [1, 2, 4, 6]}"#,
+        );
+        assert!(close(&v["rps"], 0.05), "{}", v["rps"]);
+        assert_eq!(v["categories"]["count"], 5);
+        assert_eq!(v["categories"]["edges"], serde_json::json!([1, 2, 4, 6]));
+        let one_edge =
+            scored(r#"{"cases": [{"pmf": [0.25, 0.75], "observed": 0}], "category_edges": [1]}"#);
+        // Two categories: (0.25 - 1)^2 / 1.
+        assert!(close(&one_edge["rps"], 0.5625));
+    }
+
+    #[test]
+    fn malformed_inputs_name_the_field() {
+        let repeated =
+            error(r#"{"cases": [{"pmf": [1.0], "observed": 0}], "category_edges": [1, 3, 3, 7]}"#);
+        assert!(
+            repeated.contains("category_edges") && repeated.contains("edge 2"),
+            "{repeated}"
+        );
+        let text = error(
+            r#"{"cases": [{"pmf": [1.0], "observed": 0}], "category_edges": [1, 2, "x", 7]}"#,
+        );
+        assert!(text.contains("category_edges[2]"), "{text}");
+        let pmf =
+            error(r#"{"cases": [{"pmf": [1.0], "observed": 0}, {"pmf": "a", "observed": 1}]}"#);
+        assert!(pmf.contains("cases[1].pmf"), "{pmf}");
+        let trailing = error(r#"{"cases": [{"pmf": [1.0], "observed": 0}]} ]"#);
+        assert!(trailing.contains("trailing"), "{trailing}");
     }
 
     #[test]
