@@ -148,7 +148,10 @@ impl IntoResponse for AppError {
     fn into_response(self) -> Response {
         let problem = self.problem();
         let logged = clip(&self.to_string(), MAX_DETAIL_CHARS);
-        if problem.status >= 500 {
+        if matches!(self, AppError::NotReady) {
+            // Readiness probes ask until the startup load is done: expected, not an error.
+            tracing::info!(status = problem.status, error = %logged, "not ready yet");
+        } else if problem.status >= 500 {
             tracing::error!(status = problem.status, error = %logged, "request failed");
         } else {
             tracing::info!(status = problem.status, error = %logged, "request refused");
@@ -189,5 +192,54 @@ pub fn problem_response(problem: Problem) -> Response {
 impl From<tokio::task::JoinError> for AppError {
     fn from(err: tokio::task::JoinError) -> Self {
         AppError::Internal(format!("background task: {err}"))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use std::io::Write;
+    use std::sync::{Arc, Mutex};
+
+    use axum::response::IntoResponse;
+
+    use super::AppError;
+
+    /// Log lines written while `f` runs, as the plain formatter writes them.
+    fn logged(f: impl FnOnce()) -> String {
+        #[derive(Clone, Default)]
+        struct Buffer(Arc<Mutex<Vec<u8>>>);
+        impl Write for Buffer {
+            fn write(&mut self, bytes: &[u8]) -> std::io::Result<usize> {
+                self.0.lock().expect("buffer").extend_from_slice(bytes);
+                Ok(bytes.len())
+            }
+            fn flush(&mut self) -> std::io::Result<()> {
+                Ok(())
+            }
+        }
+        let buffer = Buffer::default();
+        let writer = buffer.clone();
+        let subscriber = tracing_subscriber::fmt()
+            .with_ansi(false)
+            .with_max_level(tracing::Level::DEBUG)
+            .with_writer(move || writer.clone())
+            .finish();
+        tracing::subscriber::with_default(subscriber, f);
+        let bytes = buffer.0.lock().expect("buffer").clone();
+        String::from_utf8(bytes).expect("utf-8 log")
+    }
+
+    #[test]
+    fn a_readiness_503_is_logged_at_info_and_an_internal_error_at_error() {
+        let not_ready = logged(|| {
+            let response = AppError::NotReady.into_response();
+            assert_eq!(response.status(), 503);
+        });
+        assert!(not_ready.contains(" INFO "), "{not_ready}");
+        assert!(!not_ready.contains("ERROR"), "{not_ready}");
+        let internal = logged(|| {
+            let _ = AppError::Internal("disk on fire".into()).into_response();
+        });
+        assert!(internal.contains("ERROR"), "{internal}");
     }
 }

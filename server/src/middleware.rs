@@ -129,7 +129,15 @@ pub async fn problem_shape(request: Request, next: Next) -> Response {
     }
     let mut problem = match response.extensions().get::<Problem>() {
         Some(problem) => problem.clone(),
-        None => generic_problem(status),
+        None => {
+            // Not shaped by `AppError` (which logs its own): a timeout, a body limit, a
+            // rejected method. Server-side ones are logged here, since the trace layer's
+            // failure line is quiet.
+            if status.is_server_error() {
+                tracing::error!(status = status.as_u16(), path = %crate::error::clip(&path, MAX_ECHOED_PATH_CHARS), "request failed");
+            }
+            generic_problem(status)
+        }
     };
     problem.instance = crate::error::clip(&path, MAX_ECHOED_PATH_CHARS);
     let mut shaped = problem_response(problem);

@@ -108,7 +108,12 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
     if let Some(cors) = crate::cors::layer(&options.cors_origins) {
         app = app.layer(cors);
     }
-    app.layer(TraceLayer::new_for_http())
+    // Failures are logged once, by `AppError` at their own level (a readiness probe's 503 at
+    // INFO); the trace layer's own failure line would repeat each at ERROR.
+    app.layer(
+        TraceLayer::new_for_http()
+            .on_failure(tower_http::trace::DefaultOnFailure::new().level(tracing::Level::DEBUG)),
+    )
 }
 
 async fn unknown_path(uri: Uri) -> AppError {
