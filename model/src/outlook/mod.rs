@@ -195,6 +195,11 @@ pub struct TercileOutlook {
     pub edge_lower_shares: [f64; 2],
     /// The reference's mean count.
     pub reference_mean: f64,
+    /// The reference's own 10th and 90th percentiles (its 80% range), days.
+    pub reference_range: [u32; 2],
+    /// Whether the climatology fell back to the whole record (the 1991-2020 period had too
+    /// few usable seasons); always `false` for the trend-only reference.
+    pub fallback: bool,
     /// P(below normal).
     pub below: f64,
     /// P(near normal).
@@ -353,6 +358,11 @@ pub fn assemble(inputs: OutlookInputs<'_>) -> Result<Outlook, OutlookError> {
             edges: edges.edges(),
             edge_lower_shares: edges.lower_shares(),
             reference_mean,
+            reference_range: [
+                reference_distribution.quantile(0.1) as u32,
+                reference_distribution.quantile(0.9) as u32,
+            ],
+            fallback: reference.fallback,
             below,
             near,
             above,

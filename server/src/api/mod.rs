@@ -16,8 +16,8 @@ pub use gauge::{
 };
 pub use outlook::{
     BrierScore, DayChance, DriverUse, EngineSummary, Exceedance, FitPeriod, IssuedOutlook,
-    IssuedOutlookList, LastSeason, Outlook, OutlookSet, SeasonVerification, TercileReference,
-    Terciles, Unavailable, WaterEffect, exceedance_from_pmf,
+    IssuedOutlookList, LastSeason, Outlook, OutlookSet, PlanBasis, PlanOn, SeasonVerification,
+    TercileReference, Terciles, Unavailable, WaterEffect, exceedance_from_pmf,
 };
 pub use problem::Problem;
 pub use skill::{EngineSkill, Hindcast, HindcastCase, ScoreRow, Skill, Verdict};

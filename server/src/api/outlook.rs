@@ -72,6 +72,39 @@ pub struct Outlook {
     /// The water-level engine's fitted driver effects on the daily high water.
     #[serde(default)]
     pub water_effects: Vec<WaterEffect>,
+    /// The one number to plan with, consistent with the skill verdict.
+    #[serde(default)]
+    pub plan_on: PlanOn,
+}
+
+/// Where the number to plan with comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PlanBasis {
+    /// The outlook itself: it beat its references out of sample.
+    Outlook,
+    /// The 1991-2020 climatology, which the outlook did not beat (or could not be checked
+    /// against).
+    #[default]
+    Climatology,
+    /// The average of the gauge's whole record, standing in for the 1991-2020 climatology
+    /// where the record does not cover that period.
+    RecordAverage,
+    /// The expectation from the sea-level trend alone, which the outlook did not beat.
+    TrendOnly,
+}
+
+/// The one number a planner plans with, and why.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct PlanOn {
+    /// Expected flood days of the chosen basis.
+    pub days: f64,
+    /// The basis's own 80% range (10th to 90th percentile), days.
+    pub range: [u32; 2],
+    /// Which distribution the number comes from.
+    pub basis: PlanBasis,
+    /// The choice in plain words, with the number and its range.
+    pub sentence: String,
 }
 
 /// The other engine's answer.

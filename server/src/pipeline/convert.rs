@@ -34,6 +34,7 @@ pub fn outlook(
     skill: api::Skill,
     issue: &IssueStamp<'_>,
 ) -> api::Outlook {
+    let plan_on = plan_on_of(o, &skill);
     api::Outlook {
         gauge: o.gauge_id.clone(),
         season: o.season.clone(),
@@ -131,7 +132,36 @@ pub fn outlook(
                 interval95_m: e.interval95_m,
             })
             .collect(),
+        plan_on,
     }
+}
+
+/// The number to plan with, from the outlook, its references and its skill verdict.
+fn plan_on_of(o: &model_outlook::Outlook, skill: &api::Skill) -> api::PlanOn {
+    let reference = |kind: ReferenceKind| o.terciles.iter().find(|t| t.reference == kind);
+    let answer = |t: &model_outlook::TercileOutlook| super::plan_on::Answer {
+        mean: t.reference_mean,
+        range: t.reference_range,
+    };
+    let climatology = reference(ReferenceKind::Climatology);
+    super::plan_on::plan_on(&super::plan_on::PlanInputs {
+        verdict: skill.verdict,
+        seasons_scored: skill.seasons_scored,
+        season_name: &skill.season_name,
+        outlook: super::plan_on::Answer {
+            mean: o.mean,
+            range: [o.p10, o.p90],
+        },
+        climatology: climatology.map_or(
+            super::plan_on::Answer {
+                mean: o.climatological_mean,
+                range: [o.p10, o.p90],
+            },
+            answer,
+        ),
+        climatology_is_whole_record: climatology.is_some_and(|t| t.fallback),
+        trend_only: reference(ReferenceKind::TrendOnly).map(answer),
+    })
 }
 
 /// The wire name of an engine.

@@ -8,6 +8,7 @@
 //! other seasons are issued on demand by [`outlook_for_season`].
 
 mod convert;
+mod plan_on;
 mod prepare;
 mod verification;
 
