@@ -502,6 +502,7 @@ pub fn build_entry(
     let stored = store.call_blocking(|c| store::latest_model(c, id))?;
     if let Some(model) = stored
         && let Ok(results) = serde_json::from_str::<GaugeResults>(&model.results_json)
+        && results.results_format == pipeline::RESULTS_FORMAT
     {
         let at: InputVersions = serde_json::from_str(&model.inputs_json).unwrap_or_default();
         let Some((inputs, versions)) = store.call_blocking(|c| load_inputs_at(c, id, Some(&at)))?

@@ -7,7 +7,7 @@ use std::sync::Arc;
 
 use axum::http::StatusCode;
 use support::*;
-use tidetally_server::{app, state};
+use tidetally_server::{AppState, app, state};
 
 #[tokio::test]
 async fn health_and_readiness() {
@@ -431,4 +431,58 @@ async fn cors_preflight_answers_configured_origins_only() {
     let other = [("origin", "https://elsewhere.example")];
     let b = send(&app, "GET", "/api/v1/gauges", &other, vec![]).await;
     assert_eq!(b.header("access-control-allow-origin"), None);
+}
+
+/// Results stored by an older build (another `results_format`) are refitted at start-up,
+/// never served without the fields added since; results of this build's format are reused.
+#[tokio::test]
+async fn stored_results_of_an_older_format_are_refitted_not_served() {
+    let path = support::temp_dir("results-format").join("store.db");
+    let open = |writes: bool| {
+        let store = tidetally_server::store::Store::open(&path).expect("file store");
+        let token = writes.then(|| tidetally_server::auth::Token::new(support::TOKEN.into()));
+        AppState::new(store, token, std::time::Duration::from_secs(300))
+    };
+    let writer = open(true);
+    state::load_catalog(&writer).expect("empty store loads");
+    upload_gauge(&app(Arc::clone(&writer)), "a").await;
+    let fake = synthetic_results("a");
+    let fake_version = fake.model_version.clone();
+
+    let serving_version = |st: &Arc<AppState>| {
+        st.catalog
+            .get("a")
+            .expect("gauge loaded")
+            .model
+            .as_ref()
+            .ok()
+            .map(|m| m.results.model_version.clone())
+    };
+    let (w, current) = (Arc::clone(&writer), fake.clone());
+    tokio::task::spawn_blocking(move || state::install_results(&w, "a", current))
+        .await
+        .unwrap()
+        .unwrap();
+    let reader = open(false);
+    let r = Arc::clone(&reader);
+    tokio::task::spawn_blocking(move || state::load_catalog(&r))
+        .await
+        .unwrap()
+        .unwrap();
+    assert_eq!(serving_version(&reader), Some(fake_version.clone()));
+
+    let mut old = fake;
+    old.results_format = 0;
+    let w = Arc::clone(&writer);
+    tokio::task::spawn_blocking(move || state::install_results(&w, "a", old))
+        .await
+        .unwrap()
+        .unwrap();
+    let reader = open(false);
+    let r = Arc::clone(&reader);
+    tokio::task::spawn_blocking(move || state::load_catalog(&r))
+        .await
+        .unwrap()
+        .unwrap();
+    assert_ne!(serving_version(&reader), Some(fake_version));
 }

@@ -85,6 +85,10 @@ pub struct StoredForecast {
 /// A gauge's fitted results as served: stored as JSON in the store after each refit.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct GaugeResults {
+    /// The shape these results were made in ([`RESULTS_FORMAT`]; 0 for results stored before
+    /// the number was kept). Stored results of another shape are refitted, not served.
+    #[serde(default)]
+    pub results_format: u32,
     /// Version of the fit (model code version and a hash of the inputs).
     pub model_version: String,
     /// When it was fitted (RFC 3339).
@@ -96,6 +100,11 @@ pub struct GaugeResults {
     /// The driver values behind each outlook, by season label.
     pub driver_inputs: BTreeMap<String, serde_json::Value>,
 }
+
+/// The shape of [`GaugeResults`] and the outlooks in it: raise it whenever a served field is
+/// added or its meaning changes, so a store written by an older build is refitted at start-up
+/// instead of serving results without the new fields.
+pub const RESULTS_FORMAT: u32 = 2;
 
 /// The season table of a gauge with each season's driver predictors and ENSO category
 /// joined (the tidal driver, a harmonic analysis of the whole record, is left out here). When
@@ -320,6 +329,7 @@ fn build_from(
     let (outlook, drivers) = (issued.outlook, issued.driver_inputs);
     let label = target.label();
     Ok(GaugeResults {
+        results_format: RESULTS_FORMAT,
         hindcast,
         outlooks: BTreeMap::from([(label.clone(), outlook)]),
         driver_inputs: BTreeMap::from([(label, drivers)]),

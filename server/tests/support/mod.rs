@@ -113,7 +113,10 @@ pub async fn write(app: &Router, method: &str, uri: &str, body: impl Into<Vec<u8
 /// service's plumbing only, not any model.
 pub fn synthetic_results(gauge: &str) -> GaugeResults {
     let fake = tidetally_test_support::fixtures::fake_results(gauge, &[0.5, 0.3, 0.2]);
-    serde_json::from_value(fake).expect("the fake results have the wire shape")
+    let mut results: GaugeResults =
+        serde_json::from_value(fake).expect("the fake results have the wire shape");
+    results.results_format = tidetally_server::pipeline::RESULTS_FORMAT;
+    results
 }
 
 /// Uploads a gauge and its levels through the API.
