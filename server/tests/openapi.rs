@@ -7,7 +7,6 @@ use std::sync::Arc;
 
 use axum::http::StatusCode;
 use support::*;
-use tidetally_server::openapi::{OPERATIONS, SCHEMAS};
 use tidetally_server::{app, state};
 
 /// Every route this test knows the service to have, written out independently of the
@@ -52,6 +51,27 @@ fn concrete(path: &str) -> String {
         .replace("{version}", "1")
 }
 
+/// The JSON types a property schema allows, following `$ref`, `oneOf` and `anyOf`.
+fn json_types(doc: &serde_json::Value, schema: &serde_json::Value) -> Vec<String> {
+    if let Some(r) = schema["$ref"].as_str() {
+        let name = r.trim_start_matches("#/components/schemas/");
+        return json_types(doc, &doc["components"]["schemas"][name]);
+    }
+    for key in ["oneOf", "anyOf"] {
+        if let Some(alts) = schema[key].as_array() {
+            return alts.iter().flat_map(|a| json_types(doc, a)).collect();
+        }
+    }
+    match &schema["type"] {
+        serde_json::Value::Array(a) => a
+            .iter()
+            .filter_map(|t| t.as_str().map(str::to_owned))
+            .collect(),
+        serde_json::Value::String(t) => vec![t.clone()],
+        _ => panic!("property schema without a type: {schema}"),
+    }
+}
+
 /// Checks that `body` has every required field of `schema` with the documented JSON type.
 fn assert_conforms(doc: &serde_json::Value, schema: &str, body: &serde_json::Value, what: &str) {
     let s = &doc["components"]["schemas"][schema];
@@ -63,11 +83,8 @@ fn assert_conforms(doc: &serde_json::Value, schema: &str, body: &serde_json::Val
         let value = body
             .get(name)
             .unwrap_or_else(|| panic!("{what}: field {name} missing in {body}"));
-        let ty = &s["properties"][name]["type"];
-        let types: Vec<&str> = match ty {
-            serde_json::Value::Array(a) => a.iter().filter_map(|t| t.as_str()).collect(),
-            t => vec![t.as_str().unwrap()],
-        };
+        let types = json_types(doc, &s["properties"][name]);
+        let types: Vec<&str> = types.iter().map(String::as_str).collect();
         let actual = match value {
             serde_json::Value::Null => "null",
             serde_json::Value::Bool(_) => "boolean",
@@ -104,7 +121,7 @@ async fn every_route_is_documented_and_every_documented_route_exists() {
         EXPECTED.len(),
         "the document lists operations the test does not know"
     );
-    for (method, path, _, _) in OPERATIONS {
+    for (method, path) in EXPECTED {
         let a = send(&app, &method.to_uppercase(), &concrete(path), &[], vec![]).await;
         let body: serde_json::Value = serde_json::from_slice(&a.body).unwrap_or_default();
         assert_ne!(
@@ -124,7 +141,25 @@ async fn real_responses_have_the_documented_fields() {
     let state = state(true);
     let app = app(Arc::clone(&state));
     let doc = get(&app, "/api/v1/openapi.json").await.json();
-    for (name, _) in SCHEMAS {
+    for name in [
+        "Health",
+        "Ready",
+        "OpenApiDocument",
+        "GaugeList",
+        "Gauge",
+        "FeatureCollection",
+        "SeasonHistory",
+        "Outlook",
+        "Hindcast",
+        "OutlookSet",
+        "IssuedOutlookList",
+        "UploadReceipt",
+        "Retired",
+        "Pruned",
+        "VersionList",
+        "SeriesList",
+        "Problem",
+    ] {
         assert!(
             doc["components"]["schemas"][name].is_object(),
             "schema {name}"
@@ -156,7 +191,7 @@ async fn real_responses_have_the_documented_fields() {
     let reads = [
         ("/healthz", "Health"),
         ("/readyz", "Ready"),
-        ("/api/v1/openapi.json", "OpenApi"),
+        ("/api/v1/openapi.json", "OpenApiDocument"),
         ("/api/v1/gauges", "GaugeList"),
         ("/api/v1/gauges.geojson", "FeatureCollection"),
         ("/api/v1/gauges/a", "Gauge"),

@@ -3,11 +3,13 @@
 use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
+use utoipa::ToSchema;
 
 /// One gauge as the API shows it.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct Gauge {
     /// Identifier: lowercase letters, digits and `-`.
+    #[schema(example = "port-tamsin")]
     pub id: String,
     /// Human name.
     pub name: String,
@@ -16,12 +18,14 @@ pub struct Gauge {
     /// Degrees east (WGS 84).
     pub longitude: f64,
     /// The datum levels and the threshold are relative to.
+    #[schema(example = "STND")]
     pub datum: String,
     /// Minor flood threshold, metres above `datum`.
     pub flood_threshold_m: f64,
-    /// Local standard time of the gauge, e.g. `-05:00`.
+    /// Local standard time of the gauge as an offset from UTC, hours and minutes, e.g. `-05:00`.
     pub utc_offset: String,
     /// Season names defined for this gauge, e.g. `["DJF", "MAM", "JJA", "SON"]`.
+    #[schema(example = json!(["DJF", "MAM", "JJA", "SON"]))]
     pub seasons: Vec<String>,
     /// The stored water-level record, when one has been uploaded.
     pub record: Option<RecordSpan>,
@@ -32,40 +36,42 @@ pub struct Gauge {
 }
 
 /// The span of a stored water-level record.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct RecordSpan {
     /// First reading time (ISO 8601, as uploaded).
     pub first: String,
     /// Last reading time (ISO 8601, as uploaded).
     pub last: String,
-    /// Number of data rows (including rows with a missing level).
+    /// Number of data rows, count (including rows with a missing level).
     pub readings: u64,
     /// When the record was uploaded (RFC 3339, UTC).
     pub uploaded_at: String,
 }
 
 /// `GET /api/v1/gauges`.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct GaugeList {
     /// All gauges, ordered by id.
     pub gauges: Vec<Gauge>,
 }
 
 /// `GET /api/v1/gauges.geojson`: an RFC 7946 FeatureCollection of gauge points.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct FeatureCollection {
     /// Always `FeatureCollection`.
     #[serde(rename = "type")]
+    #[schema(example = "FeatureCollection")]
     pub kind: String,
     /// One feature per gauge.
     pub features: Vec<Feature>,
 }
 
 /// One gauge as a GeoJSON Feature.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct Feature {
     /// Always `Feature`.
     #[serde(rename = "type")]
+    #[schema(example = "Feature")]
     pub kind: String,
     /// The gauge id.
     pub id: String,
@@ -76,17 +82,18 @@ pub struct Feature {
 }
 
 /// A GeoJSON Point; `coordinates` are `[longitude, latitude]` (RFC 7946 section 3.1.1).
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct Point {
     /// Always `Point`.
     #[serde(rename = "type")]
+    #[schema(example = "Point")]
     pub kind: String,
     /// `[longitude, latitude]` in degrees.
     pub coordinates: [f64; 2],
 }
 
 /// The properties of a gauge feature.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct GaugeProperties {
     /// The gauge id.
     pub id: String,
@@ -135,9 +142,10 @@ impl Feature {
 }
 
 /// `GET /api/v1/gauges/{id}/seasons`: the gauge's season table.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct SeasonHistory {
     /// The gauge id.
+    #[schema(example = "port-tamsin")]
     pub gauge: String,
     /// Datum of the threshold.
     pub datum: String,
@@ -148,28 +156,31 @@ pub struct SeasonHistory {
 }
 
 /// One season of the season table.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct SeasonRow {
-    /// Label, e.g. `2026-DJF`.
+    /// Season label, e.g. `2026-DJF` (December 2026 to February 2027: a season is named for
+    /// the year its first month falls in).
+    #[schema(example = "2026-DJF")]
     pub season: String,
     /// First calendar day (`YYYY-MM-DD`).
     pub first_day: String,
     /// Last calendar day (`YYYY-MM-DD`).
     pub last_day: String,
-    /// Calendar days in the season.
+    /// Calendar days in the season, days.
     pub calendar_days: u32,
-    /// Days with enough readings to count (the exposure).
+    /// Days with enough readings to count (the exposure), days.
     pub observed_days: u32,
-    /// Observed days whose highest level reached the threshold.
+    /// Observed days whose highest level reached the threshold, days.
     pub flood_days: u32,
-    /// `observed_days / calendar_days`.
+    /// `observed_days / calendar_days`, a fraction from 0 to 1.
     pub completeness: f64,
     /// Whether the season is complete enough to enter the fit.
     pub used_in_fit: bool,
     /// Seasonal predictor values by name (e.g. `enso`, `mjo`, `wind`, `sea_level`, `tide`);
-    /// a missing value is absent.
+    /// a missing value is absent. Each in its driver's unit (an outlook's `drivers[].unit`).
     pub predictors: BTreeMap<String, f64>,
     /// ENSO category of the season's own months (`la_nina`, `neutral`, `el_nino`), when the
     /// ENSO index covers them.
+    #[schema(value_type = Option<crate::openapi::EnsoCategory>)]
     pub enso_category: Option<String>,
 }

@@ -1,17 +1,18 @@
 //! Bodies of the write endpoints and their receipts.
 
 use serde::{Deserialize, Serialize};
+use utoipa::ToSchema;
 
 /// The answer to a successful upload.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct UploadReceipt {
     /// What was stored, e.g. `gauge`, `levels`, `driver:enso`, `forecast:enso`.
     pub stored: String,
     /// The gauge it belongs to, if any.
     pub gauge: Option<String>,
-    /// Data rows accepted (0 for documents such as a gauge TOML).
+    /// Data rows accepted, count (0 for documents such as a gauge TOML).
     pub rows: u64,
-    /// Bytes received (after gzip decompression).
+    /// Bytes received (after gzip decompression), bytes.
     pub bytes: u64,
     /// Strong ETag of the stored content.
     pub content_hash: String,
@@ -28,13 +29,13 @@ pub struct UploadReceipt {
 }
 
 /// One stored version of an input.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct InputVersion {
     /// Version id (increasing with time).
     pub version: i64,
-    /// Upload time.
+    /// Upload time (RFC 3339, UTC).
     pub uploaded_at: String,
-    /// Data rows (0 for documents).
+    /// Data rows, count (0 for documents).
     pub rows: u64,
     /// Strong ETag of the content.
     pub content_hash: String,
@@ -43,9 +44,10 @@ pub struct InputVersion {
 }
 
 /// Every stored version of a gauge's inputs.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct VersionList {
     /// The gauge.
+    #[schema(example = "port-tamsin")]
     pub gauge: String,
     /// Whether the gauge is retired (hidden from the lists).
     pub retired: bool,
@@ -58,9 +60,10 @@ pub struct VersionList {
 }
 
 /// A named driver series.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct SeriesEntry {
     /// `enso`, `rmm`, `wind` or `enso_forecast`.
+    #[schema(value_type = crate::openapi::SeriesKind)]
     pub kind: String,
     /// Its name (a gauge TOML chooses it by file stem).
     pub name: String,
@@ -71,7 +74,7 @@ pub struct SeriesEntry {
 }
 
 /// Every stored driver series.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct SeriesList {
     /// The series, by kind and name.
     pub series: Vec<SeriesEntry>,
@@ -80,9 +83,10 @@ pub struct SeriesList {
 /// An ENSO forecast for a target season: ensemble members per model, or category
 /// probabilities (DEVELOPERS.md, "Driver series"). Extra top-level fields (e.g. a `note`)
 /// are allowed and not kept.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct EnsoForecast {
     /// Target season label.
+    #[schema(example = "2026-DJF")]
     pub season: String,
     /// Issue date, `YYYY-MM-DD`.
     pub issued: String,
@@ -95,23 +99,23 @@ pub struct EnsoForecast {
 }
 
 /// One model's ensemble members (Nino-3.4 anomaly, deg C).
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct EnsoForecastModel {
     /// Model name.
     pub name: String,
-    /// Member anomalies.
+    /// Member anomalies, deg C.
     pub members: Vec<f64>,
 }
 
 /// ENSO category probabilities.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct EnsoProbabilities {
-    /// P(La Nina).
+    /// P(La Nina), 0 to 1.
     pub la_nina: f64,
-    /// P(neutral).
+    /// P(neutral), 0 to 1.
     pub neutral: f64,
-    /// P(El Nino).
+    /// P(El Nino), 0 to 1.
     pub el_nino: f64,
 }

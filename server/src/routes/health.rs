@@ -11,6 +11,16 @@ use serde_json::json;
 use crate::error::AppError;
 use crate::state::AppState;
 
+#[utoipa::path(
+    get,
+    path = "/healthz",
+    operation_id = "getHealth",
+    tag = "health",
+    summary = "The process is up",
+    responses(
+        (status = 200, description = "Alive", content_type = "application/json", body = crate::openapi::Health)
+    )
+)]
 /// `GET /healthz`: the process is up.
 pub async fn healthz() -> impl IntoResponse {
     (
@@ -19,6 +29,17 @@ pub async fn healthz() -> impl IntoResponse {
     )
 }
 
+#[utoipa::path(
+    get,
+    path = "/readyz",
+    operation_id = "getReady",
+    tag = "health",
+    summary = "The store is open and the models are loaded",
+    responses(
+        (status = 200, description = "Ready", content_type = "application/json", body = crate::openapi::Ready),
+        (status = 503, description = "Still loading, or the store does not answer", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /readyz`: the store answers and the startup load has finished.
 pub async fn readyz(State(state): State<Arc<AppState>>) -> Result<impl IntoResponse, AppError> {
     state

@@ -1,8 +1,8 @@
 //! The router: every path, its layers, and the fallback for unknown paths.
 
-mod health;
-mod read;
-mod write;
+pub(crate) mod health;
+pub(crate) mod read;
+pub(crate) mod write;
 
 use std::sync::Arc;
 

@@ -59,6 +59,16 @@ fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
     response
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/openapi.json",
+    operation_id = "getOpenApi",
+    tag = "meta",
+    summary = "This OpenAPI 3.1 document",
+    responses(
+        (status = 200, description = "The document", content_type = "application/json", body = crate::openapi::OpenApiDocument)
+    )
+)]
 /// `GET /api/v1/openapi.json`.
 pub async fn openapi() -> Response {
     static DOC: std::sync::OnceLock<Bytes> = std::sync::OnceLock::new();
@@ -66,6 +76,18 @@ pub async fn openapi() -> Response {
     ([(header::CONTENT_TYPE, "application/json")], body.clone()).into_response()
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/gauges",
+    operation_id = "listGauges",
+    tag = "gauges",
+    summary = "All gauges, ordered by id",
+    responses(
+        (status = 200, description = "The gauges", content_type = "application/json", body = crate::api::GaugeList),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/gauges`.
 pub async fn gauges(State(state): State<Arc<AppState>>) -> Result<Json<api::GaugeList>, AppError> {
     require_loaded(&state)?;
@@ -74,6 +96,18 @@ pub async fn gauges(State(state): State<Arc<AppState>>) -> Result<Json<api::Gaug
     }))
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/gauges.geojson",
+    operation_id = "getGaugesGeoJson",
+    tag = "gauges",
+    summary = "All gauges as a GeoJSON FeatureCollection (RFC 7946)",
+    responses(
+        (status = 200, description = "The gauges as point features", content_type = "application/geo+json", body = crate::api::FeatureCollection),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/gauges.geojson`.
 pub async fn gauges_geojson(State(state): State<Arc<AppState>>) -> Result<Response, AppError> {
     require_loaded(&state)?;
@@ -82,6 +116,20 @@ pub async fn gauges_geojson(State(state): State<Arc<AppState>>) -> Result<Respon
     Ok(([(header::CONTENT_TYPE, "application/geo+json")], body).into_response())
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/gauges/{id}",
+    operation_id = "getGauge",
+    tag = "gauges",
+    summary = "One gauge",
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin")),
+    responses(
+        (status = 200, description = "The gauge", content_type = "application/json", body = crate::api::Gauge),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/gauges/{id}`.
 pub async fn gauge(
     State(state): State<Arc<AppState>>,
@@ -96,6 +144,22 @@ pub struct SeasonsQuery {
     format: Option<String>,
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/gauges/{id}/seasons",
+    operation_id = "getSeasonHistory",
+    tag = "gauges",
+    summary = "The gauge's season table (JSON, or CSV by `Accept: text/csv` or `?format=csv`)",
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin"), ("format" = Option<String>, Query, description = "`json` (default) or `csv`", example = "json")),
+    responses(
+        (status = 200, description = "The season table (as `text/csv` when asked: fixed columns, then one per predictor)", content_type = "application/json", body = crate::api::SeasonHistory),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The gauge has no season table", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/gauges/{id}/seasons` (JSON, or CSV by `Accept: text/csv` or `?format=csv`).
 pub async fn seasons(
     State(state): State<Arc<AppState>>,
@@ -183,6 +247,22 @@ pub struct OutlookQuery {
     k: Option<String>,
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/gauges/{id}/outlook",
+    operation_id = "getOutlook",
+    tag = "outlooks",
+    summary = "The gauge's outlook of minor flood days for a season",
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin"), ("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996. Default: the earliest season served.", example = "2026-DJF"), ("k" = Option<String>, Query, description = "Comma-separated counts of days `k` for `P(N >= k)`, days", example = "5,10")),
+    responses(
+        (status = 200, description = "The outlook", content_type = "application/json", body = crate::api::Outlook),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 404, description = "No such gauge, or the record cannot support an outlook of that season", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The gauge has no model", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 503, description = "Still loading, no model yet, or the on-demand queue is full", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/gauges/{id}/outlook?season=LABEL&k=5,10`.
 pub async fn outlook(
     State(state): State<Arc<AppState>>,
@@ -313,6 +393,21 @@ fn first_served_season<'a>(
         .map(|s| s.label())
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/gauges/{id}/hindcast",
+    operation_id = "getHindcast",
+    tag = "outlooks",
+    summary = "Out-of-sample skill of the gauge's model",
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin")),
+    responses(
+        (status = 200, description = "The hindcast", content_type = "application/json", body = crate::api::Hindcast),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The gauge has no model", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 503, description = "Still loading, or no model yet", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/gauges/{id}/hindcast`.
 pub async fn hindcast(
     State(state): State<Arc<AppState>>,
@@ -332,6 +427,20 @@ pub struct OutlooksQuery {
     season: Option<String>,
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/outlooks",
+    operation_id = "listOutlooks",
+    tag = "outlooks",
+    summary = "Every gauge's outlook for a season",
+    params(("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996", example = "2026-DJF")),
+    responses(
+        (status = 200, description = "The outlooks, and the gauges without one", content_type = "application/json", body = crate::api::OutlookSet),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/outlooks?season=LABEL`.
 pub async fn outlooks(
     State(state): State<Arc<AppState>>,
@@ -382,6 +491,19 @@ pub struct IssuedQuery {
     limit: Option<u32>,
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/outlooks/issued",
+    operation_id = "listIssuedOutlooks",
+    tag = "outlooks",
+    summary = "Outlooks as issued, with their verification once the season is in",
+    params(("gauge" = Option<String>, Query, description = "Only this gauge", example = "port-tamsin"), ("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996. Only this season.", example = "2026-DJF"), ("limit" = Option<u32>, Query, description = "At most this many, newest first (1 to 500, default 100)", example = 100)),
+    responses(
+        (status = 200, description = "The issued outlooks, newest first", content_type = "application/json", body = crate::api::IssuedOutlookList),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/outlooks/issued?gauge=ID&season=LABEL&limit=N`.
 pub async fn issued(
     State(state): State<Arc<AppState>>,
@@ -449,6 +571,19 @@ fn wire_versions(
         .collect()
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/gauges/{id}/versions",
+    operation_id = "listGaugeVersions",
+    tag = "gauges",
+    summary = "Every stored version of the gauge's inputs",
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin")),
+    responses(
+        (status = 200, description = "The versions", content_type = "application/json", body = crate::api::VersionList),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag"),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `GET /api/v1/gauges/{id}/versions`: every stored version of the gauge's inputs (retired
 /// gauges included), marking those the serving model was fitted on.
 pub async fn versions(
@@ -504,6 +639,17 @@ pub async fn versions(
     }))
 }
 
+#[utoipa::path(
+    get,
+    path = "/api/v1/drivers",
+    operation_id = "listDriverSeries",
+    tag = "uploads",
+    summary = "Every stored driver series, its versions and the gauges choosing it",
+    responses(
+        (status = 200, description = "The series", content_type = "application/json", body = crate::api::SeriesList),
+        (status = 304, description = "Not modified: If-None-Match matched the ETag")
+    )
+)]
 /// `GET /api/v1/drivers`: every stored driver series with its versions and the gauges whose
 /// TOML chooses it.
 pub async fn series(State(state): State<Arc<AppState>>) -> Result<Json<api::SeriesList>, AppError> {

@@ -108,6 +108,25 @@ fn receipt(
     }
 }
 
+#[utoipa::path(
+    put,
+    path = "/api/v1/gauges/{id}",
+    operation_id = "putGauge",
+    tag = "uploads",
+    summary = "Create or replace a gauge from its TOML",
+    security(("bearer" = [])),
+    request_body(content = String, content_type = "application/toml", description = "The gauge TOML; its `id` matches the path"),
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin")),
+    responses(
+        (status = 201, description = "Gauge created", body = crate::api::UploadReceipt),
+        (status = 200, description = "Gauge replaced", body = crate::api::UploadReceipt),
+        (status = 400, description = "Bad body", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 413, description = "The body is too large", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `PUT /api/v1/gauges/{id}`: a gauge TOML whose `id` matches the path.
 pub async fn put_gauge(
     State(state): State<Arc<AppState>>,
@@ -156,6 +175,26 @@ pub struct LevelsQuery {
     confirm: Option<String>,
 }
 
+#[utoipa::path(
+    put,
+    path = "/api/v1/gauges/{id}/levels",
+    operation_id = "putLevels",
+    tag = "uploads",
+    summary = "Merge water levels (CSV, plain or gzip) into the gauge's record, or replace it",
+    security(("bearer" = [])),
+    request_body(content = Vec<u8>, content_type = "text/csv", description = "Water-level CSV, plain or gzip (`Content-Encoding: gzip` or gzip bytes)"),
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin"), ("mode" = Option<String>, Query, description = "`merge` (default: new readings added, changed ones replaced) or `replace`", example = "merge"), ("confirm" = Option<String>, Query, description = "`shrink`: needed by a replace that keeps less than half of the record's days", example = "shrink")),
+    responses(
+        (status = 200, description = "Levels stored", body = crate::api::UploadReceipt),
+        (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 409, description = "A replace would shrink the record without `confirm=shrink`", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 413, description = "The body is too large", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `PUT /api/v1/gauges/{id}/levels`: a water-level CSV, plain or gzip, merged into the
 /// stored record by default.
 pub async fn put_levels(
@@ -260,6 +299,21 @@ pub async fn put_levels(
     Ok(Json(receipt))
 }
 
+#[utoipa::path(
+    delete,
+    path = "/api/v1/gauges/{id}",
+    operation_id = "retireGauge",
+    tag = "uploads",
+    summary = "Retire a gauge: hidden from the lists, its data kept",
+    security(("bearer" = [])),
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin")),
+    responses(
+        (status = 200, description = "Retired", body = crate::openapi::Retired),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `DELETE /api/v1/gauges/{id}`: retires the gauge (hidden, its data kept).
 pub async fn retire_gauge(
     State(state): State<Arc<AppState>>,
@@ -279,6 +333,22 @@ pub async fn retire_gauge(
     .await
 }
 
+#[utoipa::path(
+    post,
+    path = "/api/v1/gauges/{id}/versions/{input}/{version}/restore",
+    operation_id = "restoreGaugeVersion",
+    tag = "uploads",
+    summary = "Store an earlier version of the gauge's TOML or levels as its newest",
+    security(("bearer" = [])),
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin"), ("input" = String, Path, description = "`toml` or `levels`", example = "levels"), ("version" = i64, Path, description = "Version id", example = 1)),
+    responses(
+        (status = 200, description = "Restored", body = crate::api::UploadReceipt),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `POST /api/v1/gauges/{id}/versions/{input}/{version}/restore`: stores an earlier version
 /// of the gauge's TOML (`toml`) or level record (`levels`) as its newest.
 pub async fn restore_version(
@@ -342,6 +412,22 @@ pub struct PruneQuery {
     keep: Option<usize>,
 }
 
+#[utoipa::path(
+    post,
+    path = "/api/v1/gauges/{id}/versions/prune",
+    operation_id = "pruneGaugeVersions",
+    tag = "uploads",
+    summary = "Delete all but the newest versions of the gauge's TOML and levels",
+    security(("bearer" = [])),
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin"), ("keep" = Option<u64>, Query, description = "How many newest versions to keep, count (default 1)", example = 1)),
+    responses(
+        (status = 200, description = "Pruned", body = crate::openapi::Pruned),
+        (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `POST /api/v1/gauges/{id}/versions/prune?keep=N`: deletes all but the newest `N`
 /// (default 1) versions of the gauge's TOML and level record, never those the serving model
 /// was fitted on.
@@ -374,6 +460,25 @@ pub async fn prune_versions(
     .await
 }
 
+#[utoipa::path(
+    put,
+    path = "/api/v1/drivers/{kind}/{name}",
+    operation_id = "putDriverSeries",
+    tag = "uploads",
+    summary = "Store a new version of a named driver series",
+    security(("bearer" = [])),
+    request_body(content = Vec<u8>, content_type = "text/csv", description = "The series CSV (`enso` monthly, `rmm` daily, `wind`), plain or gzip"),
+    params(("kind" = String, Path, description = "Series kind: `enso`, `rmm` or `wind`", example = "enso"), ("name" = String, Path, description = "Series name (a gauge TOML chooses it by file stem)", example = "port-tamsin-wind")),
+    responses(
+        (status = 200, description = "Series stored", body = crate::api::UploadReceipt),
+        (status = 404, description = "No such driver kind", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 400, description = "Bad series name", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 413, description = "The body is too large", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `PUT /api/v1/drivers/{kind}/{name}`: a new version of a named driver series (`enso`
 /// monthly CSV, `rmm` daily CSV, `wind` CSV). Gauges whose TOML chooses it use it at their
 /// next refit; no other gauge sees it.
@@ -404,6 +509,23 @@ pub async fn put_series(
     Ok(Json(receipt))
 }
 
+#[utoipa::path(
+    put,
+    path = "/api/v1/forecasts/enso/{name}",
+    operation_id = "putEnsoForecast",
+    tag = "uploads",
+    summary = "Store an ENSO forecast for a target season as a new version of a named forecast series",
+    security(("bearer" = [])),
+    request_body(content = crate::api::EnsoForecast, content_type = "application/json", description = "The ENSO forecast"),
+    params(("name" = String, Path, description = "Forecast series name", example = "demo-enso-forecast")),
+    responses(
+        (status = 200, description = "Forecast stored", body = crate::api::UploadReceipt),
+        (status = 400, description = "Bad series name", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `PUT /api/v1/forecasts/enso/{name}`: an ENSO forecast JSON for a target season, as a new
 /// version of the named forecast series.
 pub async fn put_enso_forecast(
@@ -486,6 +608,22 @@ pub fn users_of(state: &AppState, key: &SeriesKey) -> Result<Vec<String>, AppErr
         .collect())
 }
 
+#[utoipa::path(
+    post,
+    path = "/api/v1/drivers/{kind}/{name}/versions/{version}/restore",
+    operation_id = "restoreDriverSeriesVersion",
+    tag = "uploads",
+    summary = "Store an earlier version of a named series as its newest",
+    security(("bearer" = [])),
+    params(("kind" = String, Path, description = "Series kind: `enso`, `rmm`, `wind` or `enso_forecast`", example = "enso"), ("name" = String, Path, description = "Series name (a gauge TOML chooses it by file stem)", example = "port-tamsin-wind"), ("version" = i64, Path, description = "Version id", example = 1)),
+    responses(
+        (status = 200, description = "Restored", body = crate::api::UploadReceipt),
+        (status = 404, description = "No such kind, series or version", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 400, description = "Bad series name", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `POST /api/v1/drivers/{kind}/{name}/versions/{version}/restore`: stores an earlier
 /// version of a named series (`kind` also `enso_forecast`) as its newest.
 pub async fn restore_series(
@@ -517,6 +655,23 @@ pub async fn restore_series(
     Ok(Json(receipt))
 }
 
+#[utoipa::path(
+    post,
+    path = "/api/v1/gauges/{id}/refit",
+    operation_id = "refitGauge",
+    tag = "uploads",
+    summary = "Refit the gauge's model; the old one keeps serving if this fails",
+    security(("bearer" = [])),
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin")),
+    responses(
+        (status = 200, description = "Refitted", body = crate::api::Gauge),
+        (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 422, description = "The fit failed; the old model keeps serving", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 503, description = "A pipeline step is not available", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+    )
+)]
 /// `POST /api/v1/gauges/{id}/refit`: rebuilds the gauge's model on its newest inputs; swaps
 /// it in only on success. Waits for the gauge's earlier writes, then for a refit permit.
 pub async fn refit(
