@@ -85,7 +85,7 @@ pub struct Outlook {
 }
 
 /// Where the number to plan with comes from.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize, ToSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum PlanBasis {
     /// The outlook itself: it beat its references out of sample.
@@ -102,7 +102,7 @@ pub enum PlanBasis {
 }
 
 /// The one number a planner plans with, and why.
-#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize, ToSchema)]
 pub struct PlanOn {
     /// Expected flood days of the chosen basis.
     pub days: f64,
