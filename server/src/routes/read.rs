@@ -345,7 +345,7 @@ pub async fn outlooks(
     let (year, name) = query::parse_label_shape(&text).map_err(AppError::BadRequest)?;
     let label = format!("{year}-{name}");
     let mut set = api::OutlookSet {
-        season: label.clone(),
+        season: Some(label.clone()),
         outlooks: Vec::new(),
         unavailable: Vec::new(),
     };
