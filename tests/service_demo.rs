@@ -248,6 +248,41 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     }
     let set = call(addr, "GET", "/api/v1/outlooks?season=2026-DJF", vec![], 200).await;
     assert_eq!(set["outlooks"].as_array().unwrap().len(), 4, "{set}");
+    // Without a season, every gauge's next outlook, each with its own season and dates
+    // (a label names the year of the season's first month: 2026-DJF is December 2026 to
+    // February 2027, common practice for seasons spanning the new year).
+    let next = call(addr, "GET", "/api/v1/outlooks", vec![], 200).await;
+    assert!(next["season"].is_null(), "{next}");
+    let outlooks = next["outlooks"].as_array().unwrap();
+    assert_eq!(outlooks.len(), 4, "{next}");
+    for o in outlooks {
+        let id = o["gauge"].as_str().unwrap();
+        let own = call(
+            addr,
+            "GET",
+            &format!("/api/v1/gauges/{id}/outlook"),
+            vec![],
+            200,
+        )
+        .await;
+        assert_eq!(o, &own, "{id}: the set holds the gauge's default outlook");
+        assert_eq!(o["season"], "2026-DJF");
+        assert_eq!(o["first_day"], "2026-12-01");
+        assert_eq!(o["last_day"], "2027-02-28");
+        assert_eq!(o["valid_until"], "2027-02-28");
+        assert_eq!(o["count_unit"], "days");
+        let record_last = o["record_last_day"].as_str().expect("record's last day");
+        assert!(
+            record_last < "2026-12-01",
+            "{id}: record ends {record_last}"
+        );
+        let changes = o["would_change"].as_array().unwrap();
+        assert!(
+            changes.iter().any(|c| c.as_str().unwrap().contains("ENSO")),
+            "{id}: {changes:?}"
+        );
+        assert!(!o["plan_on"]["sentence"].as_str().unwrap().is_empty());
+    }
 
     // The season history carries the predictors and ENSO categories.
     let history = call(

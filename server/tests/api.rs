@@ -322,7 +322,12 @@ async fn outlooks_are_served_from_installed_results() {
     let set = get(&app, "/api/v1/outlooks?season=2026-DJF").await.json();
     assert_eq!(set["outlooks"].as_array().unwrap().len(), 1);
     assert_eq!(set["unavailable"][0]["gauge"], "b");
-    get(&app, "/api/v1/outlooks")
+    // Without a season: each gauge's default outlook, the set's season null.
+    let next = get(&app, "/api/v1/outlooks").await.json();
+    assert!(next["season"].is_null(), "{next}");
+    assert_eq!(next["outlooks"][0]["season"], "2026-DJF");
+    assert_eq!(next["unavailable"][0]["gauge"], "b");
+    get(&app, "/api/v1/outlooks?season=DJF")
         .await
         .assert_problem(400, "bad-request");
 

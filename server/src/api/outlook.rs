@@ -82,6 +82,26 @@ pub struct Outlook {
     /// The one number to plan with, consistent with the skill verdict.
     #[serde(default)]
     pub plan_on: PlanOn,
+    /// The season's first calendar day (`YYYY-MM-DD`; a label's year is the year the season
+    /// starts, so `2026-DJF` runs 2026-12-01 to 2027-02-28).
+    #[serde(default)]
+    pub first_day: String,
+    /// The season's last calendar day (`YYYY-MM-DD`).
+    #[serde(default)]
+    pub last_day: String,
+    /// What the counts of `pmf`, `mean`, `median`, `p10` and `p90` count: `days`.
+    #[serde(default)]
+    pub count_unit: String,
+    /// The last day this outlook stands for (`YYYY-MM-DD`, the season's last day); after it
+    /// the observed count replaces the outlook.
+    #[serde(default)]
+    pub valid_until: String,
+    /// The water-level record's last local day (`YYYY-MM-DD`) the outlook was made from.
+    #[serde(default)]
+    pub record_last_day: Option<String>,
+    /// What would change this outlook, in plain sentences.
+    #[serde(default)]
+    pub would_change: Vec<String>,
 }
 
 /// Where the number to plan with comes from.
@@ -251,9 +271,10 @@ pub struct DriverUse {
 /// `GET /api/v1/outlooks?season=LABEL`: every gauge's outlook for one season.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct OutlookSet {
-    /// Season label.
+    /// The season asked for; null when the set holds each gauge's default (next) outlook,
+    /// each carrying its own season.
     #[schema(example = "2026-DJF")]
-    pub season: String,
+    pub season: Option<String>,
     /// Outlooks of the gauges that have one, ordered by gauge id.
     pub outlooks: Vec<Outlook>,
     /// Gauges without an outlook for this season, and why.

@@ -133,6 +133,12 @@ pub fn outlook(
             })
             .collect(),
         plan_on,
+        first_day: String::new(),
+        last_day: String::new(),
+        count_unit: COUNT_UNIT.to_owned(),
+        valid_until: String::new(),
+        record_last_day: None,
+        would_change: Vec::new(),
     }
 }
 
@@ -162,6 +168,55 @@ fn plan_on_of(o: &model_outlook::Outlook, skill: &api::Skill) -> api::PlanOn {
         climatology_is_whole_record: climatology.is_some_and(|t| t.fallback),
         trend_only: reference(ReferenceKind::TrendOnly).map(answer),
     })
+}
+
+/// The unit of an outlook's counts.
+pub const COUNT_UNIT: &str = "days";
+
+/// Fills an outlook's calendar: the season's first and last day, the count's unit, the day
+/// the outlook stops standing (the season's last day), the record's last day, and what would
+/// change the outlook.
+pub fn date_outlook(
+    outlook: &mut api::Outlook,
+    target: &tidetally_model::season::Season,
+    record_last_day: Option<chrono::NaiveDate>,
+) {
+    outlook.first_day = target.first_day().to_string();
+    outlook.last_day = target.last_day().to_string();
+    outlook.count_unit = COUNT_UNIT.to_owned();
+    outlook.valid_until = outlook.last_day.clone();
+    outlook.record_last_day = record_last_day.map(|d| d.to_string());
+    outlook.would_change = would_change(outlook);
+}
+
+/// What would change an outlook, in plain sentences: new levels always; a driver's new
+/// values or forecast for each driver it uses.
+fn would_change(outlook: &api::Outlook) -> Vec<String> {
+    let mut text = vec![format!(
+        "New water levels after {}: the model is refitted and the outlook reissued.",
+        outlook
+            .record_last_day
+            .as_deref()
+            .unwrap_or("the record's end")
+    )];
+    for driver in &outlook.drivers {
+        let sentence = match driver.name.as_str() {
+            "enso" => "A new ENSO forecast or new ENSO index values.".to_owned(),
+            "mjo" => "New MJO (RMM) index values.".to_owned(),
+            "wind" => "New wind records.".to_owned(),
+            "sea_level" => "New monthly mean sea levels.".to_owned(),
+            "tide" => continue,
+            other => format!("New values of the {other} driver."),
+        };
+        if !text.contains(&sentence) {
+            text.push(sentence);
+        }
+    }
+    text.push(format!(
+        "After {}, the season's observed count replaces the outlook.",
+        outlook.valid_until
+    ));
+    text
 }
 
 /// The wire name of an engine.

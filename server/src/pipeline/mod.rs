@@ -263,9 +263,11 @@ pub fn issue_outlook(
             stamp.model_version,
         )
     });
+    let mut outlook = convert::outlook(&issued.outlook, skill, stamp);
+    convert::date_outlook(&mut outlook, target, prepared.last_observed_day);
     Ok(WireOutlook {
         driver_inputs: convert::driver_inputs(&issued.outlook),
-        outlook: convert::outlook(&issued.outlook, skill, stamp),
+        outlook,
         hindcast,
     })
 }

@@ -432,8 +432,8 @@ pub struct OutlooksQuery {
     path = "/api/v1/outlooks",
     operation_id = "listOutlooks",
     tag = "outlooks",
-    summary = "Every gauge's outlook for a season",
-    params(("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996", example = "2026-DJF")),
+    summary = "Every gauge's outlook for a season, or each gauge's next outlook",
+    params(("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996. Without it, each gauge's default (next) outlook, each carrying its own season, and the set's season is null", example = "2026-DJF")),
     responses(
         (status = 200, description = "The outlooks, and the gauges without one", content_type = "application/json", body = crate::api::OutlookSet),
         (status = 304, description = "Not modified: If-None-Match matched the ETag"),
@@ -441,38 +441,51 @@ pub struct OutlooksQuery {
         (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
     )
 )]
-/// `GET /api/v1/outlooks?season=LABEL`.
+/// `GET /api/v1/outlooks[?season=LABEL]`: every gauge's outlook of one season, or without a
+/// season each gauge's default (next) outlook.
 pub async fn outlooks(
     State(state): State<Arc<AppState>>,
     query: Result<Query<OutlooksQuery>, QueryRejection>,
 ) -> Result<Json<api::OutlookSet>, AppError> {
     let query = query_of(query)?;
     require_loaded(&state)?;
-    let text = query.season.ok_or_else(|| {
-        AppError::BadRequest("the season parameter is required, e.g. ?season=2026-DJF".into())
-    })?;
-    let (year, name) = query::parse_label_shape(&text).map_err(AppError::BadRequest)?;
-    let label = format!("{year}-{name}");
+    // Without `?season=`, each gauge's default outlook (the earliest season its fit issued).
+    let asked = match &query.season {
+        Some(text) => {
+            let (year, name) = query::parse_label_shape(text).map_err(AppError::BadRequest)?;
+            Some((format!("{year}-{name}"), name))
+        }
+        None => None,
+    };
     let mut set = api::OutlookSet {
-        season: label.clone(),
+        season: asked.as_ref().map(|(label, _)| label.clone()),
         outlooks: Vec::new(),
         unavailable: Vec::new(),
     };
     for entry in state.catalog.list() {
         let gauge = entry.meta.id.clone();
-        let outcome = query::parse_season(&label, &entry.meta.seasons)
-            .map_err(|_| format!("gauge {gauge} does not define season {name}"))
-            .and_then(|_| entry.model.as_ref().map_err(ToString::to_string))
-            .and_then(|model| {
-                match model.outlooks.get(&label) {
-                    Some(p) => Ok(p.value.clone()),
-                    None => match model.cached(&label) {
-                        Some(Ok(p)) => Ok(p.value.clone()),
-                        Some(Err(why)) => Err(why.to_string()),
-                        None => Err(format!(
-                            "no outlook issued for {label}; GET /api/v1/gauges/{gauge}/outlook?season={label} computes it"
-                        )),
-                    },
+        let outcome = entry
+            .model
+            .as_ref()
+            .map_err(ToString::to_string)
+            .and_then(|model| match &asked {
+                None => first_served_season(model.outlooks.keys(), &entry)
+                    .and_then(|label| model.outlooks.get(&label))
+                    .map(|p| p.value.clone())
+                    .ok_or_else(|| format!("gauge {gauge} serves no outlook")),
+                Some((label, name)) => {
+                    query::parse_season(label, &entry.meta.seasons)
+                        .map_err(|_| format!("gauge {gauge} does not define season {name}"))?;
+                    match model.outlooks.get(label) {
+                        Some(p) => Ok(p.value.clone()),
+                        None => match model.cached(label) {
+                            Some(Ok(p)) => Ok(p.value.clone()),
+                            Some(Err(why)) => Err(why.to_string()),
+                            None => Err(format!(
+                                "no outlook issued for {label}; GET /api/v1/gauges/{gauge}/outlook?season={label} computes it"
+                            )),
+                        },
+                    }
                 }
             });
         match outcome {
