@@ -42,7 +42,7 @@ pub enum Command {
     Score(ScoreArgs),
     /// Fit the gauge's count model of each season name (coefficients, rate ratios, family
     /// test, fit period, seasons left out).
-    Fit(GaugeArgs),
+    Fit(FitArgs),
     /// The seasonal outlook of flood days for a target season.
     Outlook(OutlookArgs),
     /// Out-of-sample skill of the gauge's model against the climatology and the trend-only
@@ -78,6 +78,14 @@ pub struct GaugeArgs {
     /// Write the season table as CSV instead of JSON.
     #[arg(long)]
     pub csv: bool,
+}
+
+/// Arguments of `fit` (JSON only).
+#[derive(Debug, Args)]
+pub struct FitArgs {
+    /// The gauge's TOML file; it names its data files relative to itself.
+    #[arg(long)]
+    pub gauge: PathBuf,
 }
 
 /// Arguments of `hindcast`.
@@ -123,8 +131,9 @@ pub struct GlmArgs {
     /// Add ln(offset column) instead of the column itself.
     #[arg(long, requires = "offset")]
     pub log_offset: bool,
-    /// Count family: poisson, negbin or auto.
-    #[arg(long)]
+    /// Count family: poisson, negbin or auto (a likelihood-ratio test of the dispersion picks
+    /// one).
+    #[arg(long, default_value = "auto")]
     pub family: String,
 }
 
@@ -177,6 +186,8 @@ pub struct TideRiskArgs {
     #[arg(long)]
     pub gauge: PathBuf,
     /// The season, e.g. `2026-DJF` (default: the first season after the record ends).
+    /// Season labels name the year of the season's first month: `1995-DJF` is
+    /// December 1995 to February 1996, `1996-MAM` March to May 1996.
     #[arg(long)]
     pub season: Option<String>,
     /// A day is a tide risk day when its predicted high water comes within this many metres
@@ -215,7 +226,8 @@ pub struct OutlookArgs {
     #[arg(long)]
     pub gauge: PathBuf,
     /// Target season label, e.g. 2026-DJF (default: the first season starting after the
-    /// record's last observed day).
+    /// record's last observed day). Season labels name the year of the season's first month: `1995-DJF` is
+    /// December 1995 to February 1996, `1996-MAM` March to May 1996.
     #[arg(long)]
     pub season: Option<String>,
     /// Mixture components (driver scenario x parameter draw pairs).
