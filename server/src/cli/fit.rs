@@ -25,10 +25,7 @@ struct NotFitted {
     left_out: Vec<LeftOut>,
 }
 
-pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
-    if args.csv {
-        anyhow::bail!("`fit` prints JSON only; --csv applies to `counts`");
-    }
+pub(super) fn run(args: super::FitArgs) -> anyhow::Result<()> {
     let prepared = super::prepare_gauge(&args.gauge)?;
     let config = &prepared.config;
     let mut models = Vec::new();

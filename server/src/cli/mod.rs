@@ -45,7 +45,7 @@ pub enum Command {
     Score(ScoreArgs),
     /// Fit the gauge's count model of each season name (coefficients, rate ratios, family
     /// test, fit period, seasons left out).
-    Fit(GaugeArgs),
+    Fit(FitArgs),
     /// The seasonal outlook of flood days for a target season.
     Outlook(OutlookArgs),
     /// Out-of-sample skill of the gauge's model against the climatology and the trend-only
@@ -81,6 +81,14 @@ pub struct GaugeArgs {
     /// Write the season table as CSV instead of JSON.
     #[arg(long)]
     pub csv: bool,
+}
+
+/// Arguments of `fit` (JSON only).
+#[derive(Debug, Args)]
+pub struct FitArgs {
+    /// The gauge's TOML file; it names its data files relative to itself.
+    #[arg(long)]
+    pub gauge: PathBuf,
 }
 
 /// Arguments of `hindcast`.
@@ -338,6 +346,15 @@ mod tests {
             outlook.contains("December 1995 to February 1996"),
             "{outlook}"
         );
+    }
+
+    #[test]
+    fn fit_offers_no_csv_flag_it_would_refuse() {
+        let err = Cli::try_parse_from(["tidetally", "fit", "--gauge", "g.toml", "--csv"])
+            .expect_err("fit prints JSON only");
+        assert_eq!(err.kind(), clap::error::ErrorKind::UnknownArgument);
+        Cli::try_parse_from(["tidetally", "counts", "--gauge", "g.toml", "--csv"])
+            .expect("counts writes CSV");
     }
 
     #[test]
