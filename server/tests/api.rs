@@ -463,31 +463,27 @@ async fn stored_results_of_an_older_format_are_refitted_not_served() {
             .ok()
             .map(|m| m.results.model_version.clone())
     };
-    let (w, current) = (Arc::clone(&writer), fake.clone());
-    tokio::task::spawn_blocking(move || state::install_results(&w, "a", current))
-        .await
-        .unwrap()
-        .unwrap();
-    let reader = open(false);
-    let r = Arc::clone(&reader);
-    tokio::task::spawn_blocking(move || state::load_catalog(&r))
-        .await
-        .unwrap()
-        .unwrap();
-    assert_eq!(serving_version(&reader), Some(fake_version.clone()));
-
+    // Stores `results`, then starts a fresh service over the same file and says what serves.
+    let store_and_restart = |results: tidetally_server::pipeline::GaugeResults| {
+        let w = Arc::clone(&writer);
+        let reader = open(false);
+        async move {
+            let r = Arc::clone(&reader);
+            tokio::task::spawn_blocking(move || {
+                state::install_results(&w, "a", results)?;
+                state::load_catalog(&r)
+            })
+            .await
+            .unwrap()
+            .unwrap();
+            serving_version(&reader)
+        }
+    };
+    assert_eq!(
+        store_and_restart(fake.clone()).await,
+        Some(fake_version.clone())
+    );
     let mut old = fake;
     old.results_format = 0;
-    let w = Arc::clone(&writer);
-    tokio::task::spawn_blocking(move || state::install_results(&w, "a", old))
-        .await
-        .unwrap()
-        .unwrap();
-    let reader = open(false);
-    let r = Arc::clone(&reader);
-    tokio::task::spawn_blocking(move || state::load_catalog(&r))
-        .await
-        .unwrap()
-        .unwrap();
-    assert_ne!(serving_version(&reader), Some(fake_version));
+    assert_ne!(store_and_restart(old).await, Some(fake_version));
 }
