@@ -17,6 +17,7 @@ mod design;
 mod model;
 mod prepare;
 mod sources;
+mod table;
 
 pub use crate::predictor::{Predictor, UnknownPredictor};
 pub use design::{Design, DesignRow, DriverValue, LeaveOutReason, LeftOut, SeasonData};
@@ -28,6 +29,7 @@ pub use prepare::{
     tidal_driver,
 };
 pub use sources::{ByteSource, FilesNeeded, GaugeSources, GaugeToml, SourceError, TextSource};
+pub use table::{LEADING_COLUMNS, LEFT_OUT_COLUMN, write_predictor_table};
 
 use crate::glm::FamilyRequest;
 

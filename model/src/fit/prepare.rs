@@ -531,7 +531,7 @@ mod tests {
 
     fn sources_of(days: i64, extra_toml: &str) -> GaugeSources {
         let toml = format!(
-            "id = \"g1\"\nname = \"G\"\nlatitude = 10\nlongitude = 20\ndatum = \"MHHW\"\n\
+            "id = \"g1\"\nname = \"G\"\nlatitude = 10\nlongitude = -30\ndatum = \"MHHW\"\n\
              flood_threshold_m = 0.5\nutc_offset = \"+00:00\"\ncoast_orientation_deg = 0\n\
              [levels]\nfile = \"levels.csv\"\nunits = \"m\"\n\
              [model]\npredictors = [\"sea_level\"]\n{extra_toml}"

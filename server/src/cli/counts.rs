@@ -1,5 +1,6 @@
-//! `tidetally counts --gauge FILE [--csv]`: the gauge's season table (flood days, observed
-//! days and completeness per season) as JSON, or as CSV with `--csv`.
+//! `tidetally counts --gauge FILE [--csv | --predictors]`: the gauge's season table (flood
+//! days, observed days and completeness per season) as JSON, or as CSV with `--csv`; with
+//! `--predictors`, the full predictor table the count model is fitted on, as CSV.
 
 use anyhow::Context;
 use serde::Serialize;
@@ -71,6 +72,9 @@ fn output<'a>(config: &'a GaugeConfig, record: &LevelRecord) -> CountsOutput<'a>
 }
 
 pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
+    if args.predictors {
+        return super::print_text(&predictor_table(&args.gauge)?);
+    }
     let (config, record) = load(&args)?;
     if args.csv {
         let mut csv = Vec::new();
@@ -82,6 +86,16 @@ pub(super) fn run(args: super::GaugeArgs) -> anyhow::Result<()> {
     } else {
         super::print_json(&output(&config, &record))
     }
+}
+
+/// The predictor table of the gauge at `path` as CSV text (the gauge is prepared as `fit`
+/// prepares it, so the table holds exactly the values the fit sees).
+fn predictor_table(path: &std::path::Path) -> anyhow::Result<String> {
+    let prepared = super::prepare_gauge(path)?;
+    let mut csv = Vec::new();
+    tidetally_model::fit::write_predictor_table(&prepared, &mut csv)
+        .context("writing the predictor table")?;
+    Ok(String::from_utf8(csv)?)
 }
 
 /// Loads the gauge description and builds its record with the streaming summary of its
@@ -118,6 +132,7 @@ mod tests {
         let args = GaugeArgs {
             gauge: fixture(gauge),
             csv,
+            predictors: false,
         };
         let (config, record) = load(&args)?;
         if csv {

@@ -79,8 +79,14 @@ pub struct GaugeArgs {
     #[arg(long)]
     pub gauge: PathBuf,
     /// Write the season table as CSV instead of JSON.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "predictors")]
     pub csv: bool,
+    /// Write the full predictor table the model is fitted on as CSV: every season, its flood
+    /// days, observed days and ln(observed days), every predictor (the tidal one included),
+    /// and whether the gauge's fit uses the row (`in_fit`), so the model can be refitted with
+    /// other tools.
+    #[arg(long)]
+    pub predictors: bool,
 }
 
 /// Arguments of `fit` (JSON only).
