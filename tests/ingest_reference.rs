@@ -254,7 +254,7 @@ fn generated_record_matches_a_naive_count() {
         r#"id = "generated"
 name = "Generated gauge"
 latitude = 40.0
-longitude = -70.0
+longitude = -50.0
 datum = "TEST"
 flood_threshold_m = {THRESHOLD_M}
 utc_offset = "-05:00"

@@ -48,7 +48,7 @@ fn fill(state: &AppState, gauges: usize) -> anyhow::Result<()> {
                     toml,
                     name: format!("Test harbour {id}"),
                     latitude: 44.12,
-                    longitude: -67.31,
+                    longitude: -38.40,
                     updated_at: store::now_rfc3339(),
                 },
             )

@@ -150,7 +150,7 @@ pub fn gauge_toml(gauge: &GaugeSpec) -> String {
          name = \"{name}\"\n\
          latitude = {lat:.2}\n\
          longitude = {lon:.2}\n\
-         datum = \"STND\"\n\
+         datum = \"VBZ\"\n\
          flood_threshold_m = {thr:.2}\n\
          utc_offset = \"{offset}\"\n\
          coast_orientation_deg = {orient:.1}\n\

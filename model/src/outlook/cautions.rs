@@ -68,7 +68,7 @@ mod tests {
         CautionContext {
             gauge_name: "Test Harbour",
             threshold_m: 0.85,
-            datum: "STND",
+            datum: "VBZ",
             threshold_derived: derived,
             climatology_fallback: false,
         }
@@ -80,7 +80,7 @@ mod tests {
         assert!(set.len() >= 4);
         let all = set.join(" ");
         assert!(all.contains("not a warning"));
-        assert!(all.contains("0.85 m above STND"));
+        assert!(all.contains("0.85 m above VBZ"));
         assert!(all.contains("set locally"));
         assert!(all.contains("emergency managers"));
         let derived = cautions(&context(true)).join(" ");

@@ -18,7 +18,7 @@ pub struct Gauge {
     /// Degrees east (WGS 84).
     pub longitude: f64,
     /// The datum levels and the threshold are relative to.
-    #[schema(example = "STND")]
+    #[schema(example = "VBZ")]
     pub datum: String,
     /// Minor flood threshold, metres above `datum`.
     pub flood_threshold_m: f64,

@@ -729,7 +729,7 @@ mod tests {
     fn season_csv_has_one_column_per_predictor_and_blanks_for_missing() {
         let history = api::SeasonHistory {
             gauge: "a".into(),
-            datum: "STND".into(),
+            datum: "VBZ".into(),
             flood_threshold_m: 0.85,
             seasons: vec![
                 row("2020-DJF", &[("wind", 1.5), ("enso", -0.5)]),

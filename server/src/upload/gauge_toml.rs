@@ -138,8 +138,8 @@ mod tests {
         assert_eq!(g.drivers.wind.as_deref(), Some("port-alder-wind.csv"));
         assert_eq!(g.drivers.rmm.as_deref(), Some("../drivers/rmm-daily.csv"));
         assert_eq!(g.utc_offset, "-05:00");
-        assert_eq!((g.latitude, g.longitude), (44.12, -67.31));
-        assert_eq!((g.datum.as_str(), g.flood_threshold_m), ("STND", 0.85));
+        assert_eq!((g.latitude, g.longitude), (44.12, -38.40));
+        assert_eq!((g.datum.as_str(), g.flood_threshold_m), ("VBZ", 0.85));
     }
 
     #[test]
@@ -170,7 +170,7 @@ mod tests {
             let err = parse_gauge_toml(&text).unwrap_err().to_string();
             assert!(err.contains(expected), "{to}: {err}");
         }
-        let unknown = example.replace("datum = \"STND\"", "colour = \"blue\"\ndatum = \"STND\"");
+        let unknown = example.replace("datum = \"VBZ\"", "colour = \"blue\"\ndatum = \"VBZ\"");
         let err = parse_gauge_toml(&unknown).unwrap_err().to_string();
         assert!(
             err.starts_with("gauge TOML: ") && err.contains("colour"),

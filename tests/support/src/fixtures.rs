@@ -11,8 +11,8 @@ pub fn gauge_toml(id: &str) -> String {
         r#"id = "{id}"
 name = "Test harbour {id}"
 latitude = 44.12
-longitude = -67.31
-datum = "STND"
+longitude = -38.40
+datum = "VBZ"
 flood_threshold_m = 0.85
 utc_offset = "-05:00"
 coast_orientation_deg = 135.0
