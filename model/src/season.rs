@@ -424,7 +424,7 @@ impl SeasonTable {
     }
 
     /// Writes the table as CSV: `season,flood_days,observed_days,calendar_days,completeness,
-    /// included,exclusion,max_level_m` (missing values empty).
+    /// used_in_fit,left_out_reason,max_level_m` (missing values empty).
     pub fn write_csv(&self, writer: impl std::io::Write) -> Result<(), SeasonTableError> {
         let mut csv = csv::Writer::from_writer(writer);
         csv.write_record([
@@ -433,8 +433,8 @@ impl SeasonTable {
             "observed_days",
             "calendar_days",
             "completeness",
-            "included",
-            "exclusion",
+            "used_in_fit",
+            "left_out_reason",
             "max_level_m",
         ])?;
         for r in &self.rows {
@@ -622,7 +622,7 @@ mod tests {
         assert_eq!(
             lines.next(),
             Some(
-                "season,flood_days,observed_days,calendar_days,completeness,included,exclusion,max_level_m"
+                "season,flood_days,observed_days,calendar_days,completeness,used_in_fit,left_out_reason,max_level_m"
             )
         );
         assert_eq!(

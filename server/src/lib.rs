@@ -25,6 +25,7 @@ pub mod routes;
 pub mod state;
 pub mod store;
 pub mod upload;
+pub mod vocabulary;
 pub mod web;
 
 use std::future::Future;

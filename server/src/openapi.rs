@@ -158,7 +158,7 @@ pub enum Family {
     /// Poisson counts.
     Poisson,
     /// Negative binomial counts (overdispersed).
-    NegativeBinomial,
+    Negbin,
 }
 
 /// An outlook engine.

@@ -1,6 +1,6 @@
 //! A researcher refits the served model from the exported table: for every demo gauge,
 //! `tidetally counts --predictors` writes the season table with every predictor, and fitting
-//! its `in_fit` rows of each season name with `tidetally glm` (the general GLM command on any
+//! its `used_in_fit` rows of each season name with `tidetally glm` (the general GLM command on any
 //! CSV) gives the coefficients `tidetally fit` reports, within 1e-8. The service fits with the
 //! same function; `demo_outlooks.rs` checks that its outlooks' rate ratios equal `fit`'s.
 #![allow(clippy::unwrap_used)]
@@ -33,7 +33,12 @@ fn tidetally(args: &[&str]) -> Vec<u8> {
 fn table(gauge: &Path) -> (Vec<String>, Vec<Vec<String>>) {
     let bytes = tidetally(&["counts", "--gauge", gauge.to_str().unwrap(), "--predictors"]);
     let mut reader = csv::Reader::from_reader(bytes.as_slice());
-    let header = reader.headers().unwrap().iter().map(str::to_owned).collect();
+    let header = reader
+        .headers()
+        .unwrap()
+        .iter()
+        .map(str::to_owned)
+        .collect();
     let rows = reader
         .records()
         .map(|r| r.unwrap().iter().map(str::to_owned).collect())
@@ -52,7 +57,12 @@ fn column(header: &[String], name: &str) -> usize {
 fn the_exported_table_refits_to_the_served_coefficients() {
     let dir = std::env::temp_dir().join(format!("tidetally-table-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    for id in ["port-tamsin", "wrenmouth-inlet", "saltlow-sound", "corrin-quay"] {
+    for id in [
+        "port-tamsin",
+        "wrenmouth-inlet",
+        "saltlow-sound",
+        "corrin-quay",
+    ] {
         let gauge = demo_gauge(id);
         let (header, rows) = table(&gauge);
         // Every predictor has a column, the tidal one included (the demo gauges use it).
@@ -66,16 +76,16 @@ fn the_exported_table_refits_to_the_served_coefficients() {
         assert!(!models.is_empty(), "{id}: no model");
         for model in models {
             let season_name = model["season_name"].as_str().unwrap();
-            let in_fit = column(&header, "in_fit");
+            let used_in_fit = column(&header, "used_in_fit");
             let name_col = column(&header, "season_name");
             let chosen: Vec<&Vec<String>> = rows
                 .iter()
-                .filter(|r| r[in_fit] == "true" && r[name_col] == season_name)
+                .filter(|r| r[used_in_fit] == "true" && r[name_col] == season_name)
                 .collect();
             assert_eq!(
                 chosen.len() as u64,
                 model["fit_period"]["seasons"].as_u64().unwrap(),
-                "{id} {season_name}: the table's in_fit rows are the fit's seasons"
+                "{id} {season_name}: the table's used_in_fit rows are the fit's seasons"
             );
             let path = dir.join(format!("{id}-{season_name}.csv"));
             let mut writer = csv::Writer::from_path(&path).unwrap();
@@ -117,8 +127,7 @@ fn the_exported_table_refits_to_the_served_coefficients() {
                     .unwrap()
                     .iter()
                     .find(|r| r["name"] == name)
-                    .unwrap_or_else(|| panic!("{id} {season_name}: refit lacks {name}"))
-                    ["estimate"]
+                    .unwrap_or_else(|| panic!("{id} {season_name}: refit lacks {name}"))["estimate"]
                     .as_f64()
                     .unwrap();
                 assert!(

@@ -19,7 +19,7 @@ pub const LEADING_COLUMNS: [&str; 9] = [
     "observed_days",
     "calendar_days",
     "log_observed_days",
-    "in_fit",
+    "used_in_fit",
 ];
 
 /// The column after the predictors: why the default fit leaves the season out (empty when
@@ -29,7 +29,7 @@ pub const LEFT_OUT_COLUMN: &str = "left_out_reason";
 /// Writes the predictor table of `prepared` as CSV (RFC 4180, one header line): one row per
 /// season of the record in time order, the columns of [`LEADING_COLUMNS`], one column per
 /// predictor of [`Predictor::ALL`] (empty where the season has no value), and
-/// [`LEFT_OUT_COLUMN`]. `in_fit` is `true` exactly for the rows of the fit that
+/// [`LEFT_OUT_COLUMN`]. `used_in_fit` is `true` exactly for the rows of the fit that
 /// [`super::fit_gauge`] makes with default options, so filtering a season name's rows on it
 /// and fitting `flood_days ~ predictors + offset(log_observed_days)` reproduces that fit.
 pub fn write_predictor_table<W: Write>(prepared: &PreparedGauge, out: W) -> csv::Result<()> {
@@ -50,9 +50,10 @@ pub fn write_predictor_table<W: Write>(prepared: &PreparedGauge, out: W) -> csv:
     seasons.sort_by_key(|s| s.season.first_day());
     for data in seasons {
         let label = data.season.label();
-        let design = designs
-            .iter()
-            .find(|d| d.season_name.eq_ignore_ascii_case(data.season.spec().name()));
+        let design = designs.iter().find(|d| {
+            d.season_name
+                .eq_ignore_ascii_case(data.season.spec().name())
+        });
         let in_fit = design.is_some_and(|d| d.rows.iter().any(|r| r.season == data.season));
         let left_out = design
             .and_then(|d| d.left_out.iter().find(|l| l.season == label))

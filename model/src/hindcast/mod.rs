@@ -222,7 +222,7 @@ pub fn hindcast_gauge(
         }
     }
     Ok(GaugeHindcast {
-        gauge_id: config.id.clone(),
+        gauge: config.id.clone(),
         gauge_name: config.name.clone(),
         options: OptionsReport {
             draws: options.draws,

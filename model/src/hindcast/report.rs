@@ -200,7 +200,7 @@ pub struct OptionsReport {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct GaugeHindcast {
     /// The gauge's id.
-    pub gauge_id: String,
+    pub gauge: String,
     /// The gauge's name.
     pub gauge_name: String,
     /// The options.

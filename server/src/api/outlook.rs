@@ -54,7 +54,7 @@ pub struct Outlook {
     /// Mean flood days expected from the sea-level trend alone, days, when the gauge has a
     /// trend.
     pub trend_only_mean: Option<f64>,
-    /// Count family of the fitted model: `poisson` or `negative_binomial`.
+    /// Count family of the fitted model: `poisson` or `negbin`.
     #[schema(value_type = crate::openapi::Family)]
     pub family: String,
     /// The seasons the model was fitted on.

@@ -34,8 +34,8 @@ struct SeasonOutput {
     observed_days: u32,
     calendar_days: u32,
     completeness: f64,
-    included: bool,
-    exclusion: Option<String>,
+    used_in_fit: bool,
+    left_out_reason: Option<String>,
     max_level_m: Option<f64>,
 }
 
@@ -49,8 +49,8 @@ impl From<&SeasonRow> for SeasonOutput {
             observed_days: row.observed_days,
             calendar_days: row.calendar_days,
             completeness: row.completeness,
-            included: row.included,
-            exclusion: row.exclusion.clone(),
+            used_in_fit: row.included,
+            left_out_reason: row.exclusion.clone(),
             max_level_m: row.max_level_m,
         }
     }
@@ -166,7 +166,7 @@ mod tests {
         assert_eq!(seasons[0]["observed_days"], 2);
         assert_eq!(seasons[1]["flood_days"], 1);
         assert_eq!(seasons[1]["observed_days"], 2);
-        assert_eq!(seasons[1]["included"], false);
+        assert_eq!(seasons[1]["used_in_fit"], false);
     }
 
     #[test]

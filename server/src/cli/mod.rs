@@ -83,7 +83,7 @@ pub struct GaugeArgs {
     pub csv: bool,
     /// Write the full predictor table the model is fitted on as CSV: every season, its flood
     /// days, observed days and ln(observed days), every predictor (the tidal one included),
-    /// and whether the gauge's fit uses the row (`in_fit`), so the model can be refitted with
+    /// and whether the gauge's fit uses the row (`used_in_fit`), so the model can be refitted with
     /// other tools.
     #[arg(long)]
     pub predictors: bool,

@@ -13,10 +13,10 @@ use super::{TideRiskArgs, print_json};
 
 #[derive(Debug, Serialize)]
 struct RiskJson {
-    gauge_id: String,
+    gauge: String,
     season: String,
     datum: String,
-    threshold_m: f64,
+    flood_threshold_m: f64,
     margin_m: f64,
     mean_sea_level_m: f64,
     residual_days: usize,
@@ -31,7 +31,7 @@ struct RiskDayJson {
     date: String,
     predicted_high_m: f64,
     tide_risk: bool,
-    flood_probability: f64,
+    chance: f64,
 }
 
 pub(super) fn run(args: TideRiskArgs) -> anyhow::Result<()> {
@@ -77,19 +77,19 @@ fn risk_output(args: &TideRiskArgs) -> anyhow::Result<RiskJson> {
             date: day.date.to_string(),
             predicted_high_m,
             tide_risk: predicted_high_m >= threshold - args.margin,
-            flood_probability: chance,
+            chance,
         })
         .collect();
     Ok(RiskJson {
-        gauge_id: config.id.clone(),
+        gauge: config.id.clone(),
         season: season.label(),
         datum: config.datum.clone(),
-        threshold_m: threshold,
+        flood_threshold_m: threshold,
         margin_m: args.margin,
         mean_sea_level_m: middle,
         residual_days: forecast.report.days,
         tide_risk_days: days.iter().filter(|d| d.tide_risk).count() as u32,
-        expected_flood_days: days.iter().map(|d| d.flood_probability).sum(),
+        expected_flood_days: days.iter().map(|d| d.chance).sum(),
         days,
         cautions: vec![
             "Each day's chance is a seasonal estimate from the predicted tide, the sea-level \
@@ -127,17 +127,13 @@ mod tests {
         assert_eq!(out.days[0].date, "2026-12-01");
         let risky = out.days.iter().filter(|d| d.tide_risk).count();
         assert_eq!(risky as u32, out.tide_risk_days);
-        let expected: f64 = out.days.iter().map(|d| d.flood_probability).sum();
+        let expected: f64 = out.days.iter().map(|d| d.chance).sum();
         assert!((expected - out.expected_flood_days).abs() < 1e-9);
-        assert!(
-            out.days
-                .iter()
-                .all(|d| (0.0..=1.0).contains(&d.flood_probability))
-        );
+        assert!(out.days.iter().all(|d| (0.0..=1.0).contains(&d.chance)));
         // A tide-risk day has its predicted high water within the margin of the threshold.
         for d in out.days.iter().filter(|d| d.tide_risk) {
             assert!(
-                d.predicted_high_m >= out.threshold_m - out.margin_m - 1e-9,
+                d.predicted_high_m >= out.flood_threshold_m - out.margin_m - 1e-9,
                 "{d:?}"
             );
         }

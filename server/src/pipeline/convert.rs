@@ -23,7 +23,7 @@ pub struct IssueStamp<'a> {
 fn family_name(family: Family) -> &'static str {
     match family {
         Family::Poisson => "poisson",
-        Family::Negbin => "negative_binomial",
+        Family::Negbin => "negbin",
     }
 }
 
@@ -246,8 +246,7 @@ pub fn driver_inputs(o: &model_outlook::Outlook) -> serde_json::Value {
                 serde_json::json!({
                     "value": d.value,
                     "unit": d.unit,
-                    "p10": d.value_p10,
-                    "p90": d.value_p90,
+                    "value_range": [d.value_p10, d.value_p90],
                     "source": d.source,
                 }),
             )

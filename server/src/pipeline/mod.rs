@@ -104,7 +104,7 @@ pub struct GaugeResults {
 /// The shape of [`GaugeResults`] and the outlooks in it: raise it whenever a served field is
 /// added or its meaning changes, so a store written by an older build is refitted at start-up
 /// instead of serving results without the new fields.
-pub const RESULTS_FORMAT: u32 = 2;
+pub const RESULTS_FORMAT: u32 = 3;
 
 /// The season table of a gauge with each season's driver predictors and ENSO category
 /// joined (the tidal driver, a harmonic analysis of the whole record, is left out here). When
