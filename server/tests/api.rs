@@ -373,9 +373,11 @@ async fn a_failed_refit_keeps_the_old_model_serving() {
 async fn season_csv_is_negotiated_and_bad_formats_refused() {
     let app = app(state(true));
     upload_gauge(&app, "a").await;
+    // A format the endpoint cannot give is refused, never answered in JSON (RFC 9110
+    // section 15.5.7, 406 Not Acceptable).
     get(&app, "/api/v1/gauges/a/seasons?format=xml")
         .await
-        .assert_problem(400, "bad-request");
+        .assert_problem(406, "not-acceptable");
     // Levels of two days in DJF 2019 (local standard time -05:00), one reading a day: the
     // day of 2020-01-02 reaches the 0.85 m threshold, 2020-01-01 does not.
     let levels = "time,level\n2020-01-01T17:00:00Z,0.40\n2020-01-02T17:00:00Z,0.90\n";
