@@ -140,4 +140,28 @@ mod tests {
         assert_eq!(summary.verdict, outlook.skill.verdict);
         assert_eq!(summary.terciles, None, "the fake outlook has no terciles");
     }
+
+    #[test]
+    fn the_tercile_odds_are_the_climatology_references() {
+        let terciles = |reference, below| crate::api::Terciles {
+            reference,
+            edges: [1, 2],
+            below,
+            near: 0.25,
+            above: 0.75 - below,
+            edge_lower_shares: [0.5, 0.5],
+            reference_mean: 1.0,
+        };
+        let mut outlook = outlook_with(0, &[]);
+        outlook.terciles = vec![
+            terciles(TercileReference::TrendOnly, 0.5),
+            terciles(TercileReference::Climatology1991To2020, 0.125),
+        ];
+        let odds = OutlookSummary::of(&outlook)
+            .terciles
+            .expect("climatology terciles");
+        assert_eq!(odds.reference, TercileReference::Climatology1991To2020);
+        assert_eq!((odds.below, odds.near, odds.above), (0.125, 0.25, 0.625));
+        assert_eq!(OutlookSummary::of(&outlook).at_least_k, None);
+    }
 }
