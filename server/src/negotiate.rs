@@ -278,6 +278,16 @@ mod tests {
         assert_eq!(pick(None, &["*/csv, text/csv;q=0.5"]).unwrap(), Format::Csv);
     }
 
+    proptest::proptest! {
+        #[test]
+        fn negotiation_never_panics(accept in "[ -~]{0,80}", word in proptest::option::of("[ -~]{0,12}")) {
+            let Ok(value) = HeaderValue::from_str(&accept) else { return Ok(()) };
+            let mut headers = HeaderMap::new();
+            headers.insert(header::ACCEPT, value);
+            let _ = negotiate(word.as_deref(), &headers, BOTH);
+        }
+    }
+
     #[test]
     fn q_values_follow_the_grammar() {
         assert_eq!(parse_q("1"), Some(1000));
