@@ -17,7 +17,7 @@ use serde_json::Value;
 use tidetally_server::auth::Token;
 use tidetally_server::store::Store;
 use tidetally_server::{AppState, state};
-use tidetally_test_support::http::request;
+use tidetally_test_support::http::{HttpAnswer, request};
 
 const TOKEN: &str = "e2e-token-0123456789abcdef";
 const DEMO_GAUGE: &str = "port-tamsin";
@@ -283,6 +283,7 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
         );
         assert!(!o["plan_on"]["sentence"].as_str().unwrap().is_empty());
     }
+    check_map_and_spreadsheets(addr).await;
 
     // The season history carries the predictors and ENSO categories.
     let history = call(
@@ -455,6 +456,200 @@ async fn demo_outlooks_uploads_refits_and_restarts() {
     );
     stop(running).await;
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// One GET from a blocking thread, with an `Accept` header when given.
+async fn fetch(addr: SocketAddr, path: &str, accept: Option<&'static str>) -> HttpAnswer {
+    let path = path.to_owned();
+    tokio::task::spawn_blocking(move || {
+        let headers: Vec<(&str, &str)> = accept.iter().map(|a| ("Accept", *a)).collect();
+        request(addr, "GET", &path, &headers, b"", Duration::from_secs(120))
+    })
+    .await
+    .expect("client task")
+}
+
+/// A CSV body parsed with the `csv` crate (RFC 4180): the header, then the records.
+fn parse_csv(answer: &HttpAnswer) -> (Vec<String>, Vec<Vec<String>>) {
+    assert_eq!(answer.status, 200, "{}", answer.text());
+    assert_eq!(
+        answer.header("content-type").as_deref(),
+        Some("text/csv; charset=utf-8")
+    );
+    let mut reader = csv::Reader::from_reader(answer.body.as_slice());
+    let header = reader
+        .headers()
+        .unwrap()
+        .iter()
+        .map(str::to_owned)
+        .collect();
+    let rows = reader
+        .records()
+        .map(|r| r.unwrap().iter().map(str::to_owned).collect())
+        .collect();
+    (header, rows)
+}
+
+fn cell(header: &[String], row: &[String], name: &str) -> String {
+    let i = header
+        .iter()
+        .position(|h| h == name)
+        .unwrap_or_else(|| panic!("no column {name} in {header:?}"));
+    row[i].clone()
+}
+
+fn number(text: &str) -> f64 {
+    text.parse()
+        .unwrap_or_else(|e| panic!("{text:?} is not a number: {e}"))
+}
+
+/// The exceedance an outlook headlines: the smallest listed `days` above the median, else the
+/// largest (as the web page words it).
+fn headline(o: &Value) -> (u64, f64) {
+    let mut listed: Vec<(u64, f64)> = o["exceedance"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|e| (e["days"].as_u64().unwrap(), f64_of(&e["probability"])))
+        .collect();
+    listed.sort_by_key(|e| e.0);
+    let median = o["median"].as_u64().unwrap();
+    *listed
+        .iter()
+        .find(|e| e.0 > median)
+        .or(listed.last())
+        .expect("a demo outlook lists exceedances")
+}
+
+/// The GeoJSON carries each gauge's next-outlook summary; the outlook and the outlook set
+/// answer CSV equal to their JSON numbers, negotiated by `?format=` or `Accept` (q-values),
+/// with a 406 for a format they cannot give.
+async fn check_map_and_spreadsheets(addr: SocketAddr) {
+    let geo = fetch(addr, "/api/v1/gauges.geojson", None).await.json();
+    let features = geo["features"].as_array().unwrap();
+    assert_eq!(features.len(), 4);
+    let set = fetch(addr, "/api/v1/outlooks?format=csv", None).await;
+    let (set_header, set_rows) = parse_csv(&set);
+    assert_eq!(set_rows.len(), 4, "one row per gauge");
+    for (feature, row) in features.iter().zip(&set_rows) {
+        let id = feature["id"].as_str().unwrap();
+        let json = fetch(addr, &format!("/api/v1/gauges/{id}/outlook"), None).await;
+        let o = json.json();
+        let s = &feature["properties"]["next_outlook"];
+        assert_eq!(s["season"], o["season"], "{id}");
+        assert_eq!(s["mean"], o["mean"], "{id}");
+        assert_eq!(
+            s["range_80"],
+            serde_json::json!([o["p10"], o["p90"]]),
+            "{id}"
+        );
+        assert_eq!(s["plan_on"], o["plan_on"], "{id}");
+        let (k, p) = headline(&o);
+        assert_eq!(s["at_least_k"]["k"].as_u64(), Some(k), "{id}");
+        assert_eq!(f64_of(&s["at_least_k"]["probability"]), p, "{id}");
+        let climatology = o["terciles"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|t| t["reference"] == "1991-2020 climatology")
+            .expect("climatology terciles");
+        for field in ["reference", "below", "near", "above"] {
+            assert_eq!(s["terciles"][field], climatology[field], "{id}: {field}");
+        }
+        assert_eq!(s["verdict"], o["skill"]["verdict"], "{id}");
+        assert_eq!(s["engine"], o["engine"], "{id}");
+
+        // The set's CSV row holds the same headline numbers.
+        let at = |name: &str| cell(&set_header, row, name);
+        assert_eq!(at("gauge"), id);
+        assert_eq!(at("season"), o["season"].as_str().unwrap());
+        assert_eq!(number(&at("mean")), f64_of(&o["mean"]), "{id}");
+        assert_eq!(at("p10"), o["p10"].to_string());
+        assert_eq!(at("p90"), o["p90"].to_string());
+        assert_eq!(number(&at("plan_on_days")), f64_of(&o["plan_on"]["days"]));
+        assert_eq!(at("plan_on_basis"), o["plan_on"]["basis"].as_str().unwrap());
+        assert_eq!(
+            at("plan_on_sentence"),
+            o["plan_on"]["sentence"].as_str().unwrap()
+        );
+        assert_eq!(at("k"), k.to_string(), "{id}");
+        assert_eq!(number(&at("probability_at_least_k")), p, "{id}");
+        assert_eq!(at("tercile_reference"), "1991-2020 climatology");
+        for field in ["below", "near", "above"] {
+            assert_eq!(
+                number(&at(field)),
+                f64_of(&climatology[field]),
+                "{id}: {field}"
+            );
+        }
+        assert_eq!(at("verdict"), o["skill"]["verdict"].as_str().unwrap());
+        assert_eq!(at("engine"), o["engine"].as_str().unwrap());
+        assert_eq!(at("unavailable"), "");
+
+        // The outlook's count table: pmf exactly, P(N >= k) as its JSON exceedance.
+        let csv = fetch(
+            addr,
+            &format!("/api/v1/gauges/{id}/outlook?format=csv"),
+            None,
+        )
+        .await;
+        let (header, rows) = parse_csv(&csv);
+        assert_eq!(
+            header,
+            [
+                "days",
+                "probability",
+                "probability_at_least",
+                "probability_at_most"
+            ]
+        );
+        let pmf: Vec<f64> = o["pmf"].as_array().unwrap().iter().map(f64_of).collect();
+        assert_eq!(rows.len(), pmf.len(), "{id}");
+        for (days, r) in rows.iter().enumerate() {
+            assert_eq!(number(&r[0]) as usize, days);
+            assert_eq!(number(&r[1]), pmf[days], "{id}: pmf[{days}]");
+            let tail: f64 = pmf[days..].iter().sum();
+            assert!((number(&r[2]) - tail).abs() < SUM_TOLERANCE, "{id}: {r:?}");
+        }
+        for e in o["exceedance"].as_array().unwrap() {
+            let k = e["days"].as_u64().unwrap() as usize;
+            let listed = f64_of(&e["probability"]);
+            assert!(
+                (number(&rows[k][2]) - listed).abs() < 1e-6,
+                "{id}: P(N >= {k})"
+            );
+        }
+        assert_ne!(
+            csv.header("etag"),
+            json.header("etag"),
+            "{id}: its own ETag"
+        );
+    }
+
+    // Accept with q-values (RFC 9110 section 12.5.1), and a 406 for what cannot be given.
+    let path = format!("/api/v1/gauges/{DEMO_GAUGE}/outlook");
+    let by_word = fetch(addr, &format!("{path}?format=csv"), None).await;
+    let weighed = fetch(addr, &path, Some("application/json;q=0.1, text/csv;q=0.9")).await;
+    assert_eq!(weighed.body, by_word.body);
+    let json = fetch(addr, &path, Some("text/csv;q=0.4, application/json")).await;
+    assert_eq!(
+        json.header("content-type").as_deref(),
+        Some("application/json")
+    );
+    json.json();
+    for (path, accept) in [
+        (path.clone(), Some("application/xml")),
+        (format!("{path}?format=xml"), None),
+        ("/api/v1/outlooks".to_owned(), Some("application/xml")),
+    ] {
+        let refused = fetch(addr, &path, accept).await;
+        assert_eq!(refused.status, 406, "{path}: {}", refused.text());
+        assert_eq!(
+            refused.header("content-type").as_deref(),
+            Some("application/problem+json")
+        );
+        assert_eq!(refused.json()["type"], "/problems/not-acceptable");
+    }
 }
 
 /// Keeps the rows of a level CSV before `cut` (times in the file's `Z` form sort as text).

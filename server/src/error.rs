@@ -56,6 +56,9 @@ pub enum AppError {
     /// The body's media type is not accepted here.
     #[error("{0}")]
     UnsupportedMediaType(String),
+    /// The endpoint cannot answer in any format the request asks for (`?format=`, `Accept`).
+    #[error("{0}")]
+    NotAcceptable(String),
     /// A pipeline step failed or is not available.
     #[error(transparent)]
     Pipeline(#[from] PipelineError),
@@ -89,6 +92,7 @@ impl AppError {
             AppError::WritesDisabled => StatusCode::FORBIDDEN,
             AppError::PayloadTooLarge(_) => StatusCode::PAYLOAD_TOO_LARGE,
             AppError::UnsupportedMediaType(_) => StatusCode::UNSUPPORTED_MEDIA_TYPE,
+            AppError::NotAcceptable(_) => StatusCode::NOT_ACCEPTABLE,
             AppError::Pipeline(err) => match err {
                 PipelineError::NotAvailable(_) => StatusCode::SERVICE_UNAVAILABLE,
                 PipelineError::MissingInput(_) | PipelineError::Invalid(_) => {
@@ -114,6 +118,7 @@ impl AppError {
             AppError::WritesDisabled => "writes-disabled",
             AppError::PayloadTooLarge(_) => "payload-too-large",
             AppError::UnsupportedMediaType(_) => "unsupported-media-type",
+            AppError::NotAcceptable(_) => "not-acceptable",
             AppError::Pipeline(PipelineError::NotAvailable(_)) => "not-available",
             AppError::Pipeline(PipelineError::SeasonNotServed { .. }) => "not-found",
             AppError::Pipeline(_) => "pipeline-failed",

@@ -17,6 +17,7 @@ pub mod error;
 pub mod etag;
 pub mod merge;
 pub mod middleware;
+pub mod negotiate;
 pub mod openapi;
 pub mod pipeline;
 pub mod pool;

@@ -113,6 +113,9 @@ pub enum ProblemType {
     /// The body's media type is not accepted.
     #[serde(rename = "/problems/unsupported-media-type")]
     UnsupportedMediaType,
+    /// The endpoint cannot answer in a format the request accepts (`?format=`, `Accept`).
+    #[serde(rename = "/problems/not-acceptable")]
+    NotAcceptable,
     /// A pipeline step is not available.
     #[serde(rename = "/problems/not-available")]
     NotAvailable,

@@ -373,9 +373,11 @@ async fn a_failed_refit_keeps_the_old_model_serving() {
 async fn season_csv_is_negotiated_and_bad_formats_refused() {
     let app = app(state(true));
     upload_gauge(&app, "a").await;
+    // A format the endpoint cannot give is refused, never answered in JSON (RFC 9110
+    // section 15.5.7, 406 Not Acceptable).
     get(&app, "/api/v1/gauges/a/seasons?format=xml")
         .await
-        .assert_problem(400, "bad-request");
+        .assert_problem(406, "not-acceptable");
     // Levels of two days in DJF 2019 (local standard time -05:00), one reading a day: the
     // day of 2020-01-02 reaches the 0.85 m threshold, 2020-01-01 does not.
     let levels = "time,level\n2020-01-01T17:00:00Z,0.40\n2020-01-02T17:00:00Z,0.90\n";
@@ -486,4 +488,279 @@ async fn stored_results_of_an_older_format_are_refitted_not_served() {
     let mut old = fake;
     old.results_format = 0;
     assert_ne!(store_and_restart(old).await, Some(fake_version));
+}
+
+/// The rows of a CSV body, parsed with the `csv` crate (RFC 4180), header line first.
+fn csv_rows(body: &[u8]) -> Vec<Vec<String>> {
+    csv::ReaderBuilder::new()
+        .has_headers(false)
+        .from_reader(body)
+        .records()
+        .map(|r| r.unwrap().iter().map(str::to_owned).collect())
+        .collect()
+}
+
+fn num(text: &str) -> f64 {
+    text.parse()
+        .unwrap_or_else(|e| panic!("{text:?} is not a number: {e}"))
+}
+
+/// A GET with one `Accept` header.
+async fn with_accept(app: &axum::Router, uri: &str, accept: &str) -> Answer {
+    get_with(app, uri, &[("accept", accept)]).await
+}
+
+/// A GET with headers, through the router.
+async fn get_with(app: &axum::Router, uri: &str, headers: &[(&str, &str)]) -> Answer {
+    send(app, "GET", uri, headers, vec![]).await
+}
+
+#[tokio::test]
+async fn an_outlook_answers_its_count_table_as_csv_with_its_own_etag() {
+    let state = state(true);
+    let app = app(Arc::clone(&state));
+    upload_gauge(&app, "a").await;
+    let st = Arc::clone(&state);
+    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
+        .await
+        .unwrap()
+        .unwrap();
+    let json = get(&app, "/api/v1/gauges/a/outlook").await;
+    let json_etag = json.header("etag").unwrap().to_owned();
+    let outlook = json.json();
+    let pmf: Vec<f64> = outlook["pmf"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p.as_f64().unwrap())
+        .collect();
+
+    let csv = get(&app, "/api/v1/gauges/a/outlook?format=csv").await;
+    assert_eq!(csv.status, StatusCode::OK);
+    assert_eq!(csv.header("content-type"), Some("text/csv; charset=utf-8"));
+    assert!(csv.header("vary").unwrap().contains("accept"));
+    // RFC 4180 section 2: every record, the last too, ends in CRLF.
+    assert!(csv.body.ends_with(b"\r\n"));
+    let rows = csv_rows(&csv.body);
+    assert_eq!(
+        rows[0],
+        [
+            "days",
+            "probability",
+            "probability_at_least",
+            "probability_at_most"
+        ]
+    );
+    assert_eq!(rows.len(), pmf.len() + 1);
+    for (days, row) in rows[1..].iter().enumerate() {
+        assert_eq!(row[0], days.to_string());
+        assert_eq!(num(&row[1]), pmf[days], "pmf[{days}] as in the JSON");
+        // By definition P(N >= k) = sum_{j >= k} pmf[j] and P(N <= k) = sum_{j <= k} pmf[j].
+        let tail: f64 = pmf[days..].iter().sum();
+        let head: f64 = pmf[..=days].iter().sum();
+        assert!((num(&row[2]) - tail).abs() < 1e-12, "{row:?}");
+        assert!((num(&row[3]) - head).abs() < 1e-12, "{row:?}");
+    }
+    for e in outlook["exceedance"].as_array().unwrap() {
+        let k = e["days"].as_u64().unwrap() as usize;
+        if k < pmf.len() {
+            let listed = e["probability"].as_f64().unwrap();
+            assert!((num(&rows[k + 1][2]) - listed).abs() < 1e-12, "P(N >= {k})");
+        }
+    }
+    // The CSV is its own representation: its own ETag, a 304 only for that tag.
+    let csv_etag = csv.header("etag").unwrap().to_owned();
+    assert_ne!(csv_etag, json_etag);
+    let again = get_with(
+        &app,
+        "/api/v1/gauges/a/outlook?format=csv",
+        &[("if-none-match", &csv_etag)],
+    )
+    .await;
+    assert_eq!(again.status, StatusCode::NOT_MODIFIED);
+    assert!(again.header("vary").unwrap().contains("accept"));
+    let stale = get_with(
+        &app,
+        "/api/v1/gauges/a/outlook?format=csv",
+        &[("if-none-match", &json_etag)],
+    )
+    .await;
+    assert_eq!(stale.status, StatusCode::OK);
+    assert_eq!(stale.body, csv.body);
+    // `k` is still checked; the table holds every count anyway.
+    get(&app, "/api/v1/gauges/a/outlook?format=csv&k=0")
+        .await
+        .assert_problem(400, "bad-request");
+    let with_k = get(&app, "/api/v1/gauges/a/outlook?format=csv&k=1").await;
+    assert_eq!(with_k.body, csv.body);
+}
+
+/// Accept with q-values (RFC 9110 section 12.5.1: the most specific matching range gives a
+/// type its weight; q=0 means "not acceptable"), and `?format=` winning over Accept.
+#[tokio::test]
+async fn json_or_csv_is_negotiated_by_format_then_accept_and_refused_with_406() {
+    let state = state(true);
+    let app = app(Arc::clone(&state));
+    upload_gauge(&app, "a").await;
+    let st = Arc::clone(&state);
+    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
+        .await
+        .unwrap()
+        .unwrap();
+    let is_csv = |a: &Answer| {
+        assert_eq!(
+            a.status,
+            StatusCode::OK,
+            "{}",
+            String::from_utf8_lossy(&a.body)
+        );
+        a.header("content-type") == Some("text/csv; charset=utf-8")
+    };
+    for uri in [
+        "/api/v1/gauges/a/outlook",
+        "/api/v1/outlooks",
+        "/api/v1/gauges/a/seasons",
+    ] {
+        assert!(is_csv(&with_accept(&app, uri, "text/csv").await), "{uri}");
+        assert!(is_csv(&with_accept(&app, uri, "text/*").await), "{uri}");
+        assert!(
+            is_csv(&with_accept(&app, uri, "application/json;q=0.2, text/csv;q=0.9").await),
+            "{uri}"
+        );
+        assert!(
+            is_csv(&with_accept(&app, uri, "*/*, application/json;q=0").await),
+            "{uri}"
+        );
+        assert!(
+            !is_csv(&with_accept(&app, uri, "text/csv;q=0.5, application/json").await),
+            "{uri}"
+        );
+        assert!(!is_csv(&with_accept(&app, uri, "*/*").await), "{uri}");
+        assert!(
+            !is_csv(&with_accept(&app, uri, "application/json").await),
+            "{uri}"
+        );
+        assert!(!is_csv(&get(&app, uri).await), "{uri}");
+        let json = with_accept(&app, uri, "application/json").await;
+        assert_eq!(json.header("content-type"), Some("application/json"));
+        assert!(json.header("vary").unwrap().contains("accept"), "{uri}");
+        json.json();
+        for refused in ["application/xml", "text/csv;q=0, application/json;q=0"] {
+            let p = with_accept(&app, uri, refused)
+                .await
+                .assert_problem(406, "not-acceptable");
+            assert!(p["detail"].as_str().unwrap().contains("text/csv"), "{p}");
+        }
+        let sep = if uri.contains('?') { '&' } else { '?' };
+        let word = |w: &str| format!("{uri}{sep}format={w}");
+        let xml = get(&app, &word("xml"))
+            .await
+            .assert_problem(406, "not-acceptable");
+        assert!(xml["detail"].as_str().unwrap().contains("\"xml\""), "{xml}");
+        // The format word wins over Accept, either way.
+        let csv_word = get_with(&app, &word("csv"), &[("accept", "application/json")]).await;
+        assert!(is_csv(&csv_word), "{uri}");
+        let json_word = get_with(&app, &word("json"), &[("accept", "text/csv")]).await;
+        assert!(!is_csv(&json_word), "{uri}");
+        let csv_over_xml = get_with(&app, &word("csv"), &[("accept", "application/xml")]).await;
+        assert!(is_csv(&csv_over_xml), "{uri}");
+    }
+}
+
+#[tokio::test]
+async fn the_outlook_set_as_csv_has_one_row_per_gauge_with_its_headline_numbers() {
+    let state = state(true);
+    let app = app(Arc::clone(&state));
+    upload_gauge(&app, "b").await;
+    upload_gauge(&app, "a").await;
+    let st = Arc::clone(&state);
+    tokio::task::spawn_blocking(move || state::install_results(&st, "b", synthetic_results("b")))
+        .await
+        .unwrap()
+        .unwrap();
+    let set = get(&app, "/api/v1/outlooks").await.json();
+    let csv = get(&app, "/api/v1/outlooks?format=csv").await;
+    assert_eq!(csv.header("content-type"), Some("text/csv; charset=utf-8"));
+    let rows = csv_rows(&csv.body);
+    let header = &rows[0];
+    assert_eq!(rows.len(), 3, "a header and one row per gauge: {rows:?}");
+    let col = |row: &Vec<String>, name: &str| {
+        let i = header
+            .iter()
+            .position(|h| h == name)
+            .unwrap_or_else(|| panic!("no {name}"));
+        row[i].clone()
+    };
+    // Ordered by gauge id; "a" has no model, so only its reason.
+    assert_eq!(col(&rows[1], "gauge"), "a");
+    assert_eq!(
+        col(&rows[1], "unavailable"),
+        set["unavailable"][0]["reason"]
+    );
+    assert_eq!(col(&rows[1], "mean"), "");
+    let b = &rows[2];
+    let o = &set["outlooks"][0];
+    assert_eq!(col(b, "gauge"), "b");
+    assert_eq!(col(b, "season"), o["season"]);
+    assert_eq!(num(&col(b, "mean")), o["mean"].as_f64().unwrap());
+    assert_eq!(col(b, "p10"), o["p10"].to_string());
+    assert_eq!(col(b, "p90"), o["p90"].to_string());
+    assert_eq!(
+        num(&col(b, "plan_on_days")),
+        o["plan_on"]["days"].as_f64().unwrap()
+    );
+    assert_eq!(col(b, "plan_on_low"), o["plan_on"]["range"][0].to_string());
+    assert_eq!(col(b, "plan_on_high"), o["plan_on"]["range"][1].to_string());
+    assert_eq!(col(b, "plan_on_basis"), o["plan_on"]["basis"]);
+    assert_eq!(col(b, "plan_on_sentence"), o["plan_on"]["sentence"]);
+    // The fake outlook lists P(N >= 5) only, its median 0: the headline k is 5.
+    assert_eq!(col(b, "k"), "5");
+    assert_eq!(
+        num(&col(b, "probability_at_least_k")),
+        o["exceedance"][0]["probability"].as_f64().unwrap()
+    );
+    assert_eq!(col(b, "tercile_reference"), "", "the fake has no terciles");
+    assert_eq!(col(b, "verdict"), o["skill"]["verdict"]);
+    assert_eq!(col(b, "engine"), o["engine"]);
+    assert_eq!(col(b, "unavailable"), "");
+    // With a season, that season's set.
+    let seasonal = get(&app, "/api/v1/outlooks?season=2026-DJF&format=csv").await;
+    assert_eq!(csv_rows(&seasonal.body)[2], *b);
+    assert_ne!(
+        csv.header("etag"),
+        get(&app, "/api/v1/outlooks").await.header("etag")
+    );
+}
+
+#[tokio::test]
+async fn geojson_features_carry_their_next_outlooks_summary_or_null() {
+    let state = state(true);
+    let app = app(Arc::clone(&state));
+    upload_gauge(&app, "a").await;
+    upload_gauge(&app, "b").await;
+    let st = Arc::clone(&state);
+    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
+        .await
+        .unwrap()
+        .unwrap();
+    let geo = get(&app, "/api/v1/gauges.geojson").await.json();
+    let o = get(&app, "/api/v1/gauges/a/outlook").await.json();
+    let a = &geo["features"][0]["properties"];
+    assert_eq!(a["id"], "a");
+    let s = &a["next_outlook"];
+    assert_eq!(s["season"], o["season"]);
+    assert_eq!(s["mean"], o["mean"]);
+    assert_eq!(s["range_80"], serde_json::json!([o["p10"], o["p90"]]));
+    assert_eq!(s["plan_on"], o["plan_on"]);
+    assert_eq!(s["at_least_k"]["k"], 5, "the fake lists P(N >= 5) only");
+    assert_eq!(
+        s["at_least_k"]["probability"],
+        o["exceedance"][0]["probability"]
+    );
+    assert!(s["terciles"].is_null(), "the fake has no terciles: {s}");
+    assert_eq!(s["verdict"], o["skill"]["verdict"]);
+    assert_eq!(s["engine"], o["engine"]);
+    let b = &geo["features"][1]["properties"];
+    assert_eq!(b["id"], "b");
+    assert!(b["next_outlook"].is_null(), "no model, no outlook: {b}");
 }

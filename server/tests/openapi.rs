@@ -224,6 +224,21 @@ async fn real_responses_have_the_documented_fields() {
         &issued["issued"][0]["outlook"],
         "issued outlook",
     );
+    let geo = get(&app, "/api/v1/gauges.geojson").await.json();
+    let properties = &geo["features"][0]["properties"];
+    assert_conforms(&doc, "GaugeProperties", properties, "GeoJSON properties");
+    assert_conforms(
+        &doc,
+        "OutlookSummary",
+        &properties["next_outlook"],
+        "next outlook summary",
+    );
+    assert_conforms(
+        &doc,
+        "AtLeastK",
+        &properties["next_outlook"]["at_least_k"],
+        "headline exceedance",
+    );
     let problem = get(&app, "/api/v1/gauges/none").await.json();
     assert_conforms(&doc, "Problem", &problem, "problem");
 }

@@ -5,6 +5,8 @@ use std::collections::BTreeMap;
 use serde::{Deserialize, Serialize};
 use utoipa::ToSchema;
 
+use super::OutlookSummary;
+
 /// One gauge as the API shows it.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, ToSchema)]
 pub struct Gauge {
@@ -107,21 +109,25 @@ pub struct GaugeProperties {
     pub model_ready: bool,
     /// Path of the gauge's resource in this API.
     pub href: String,
+    /// The headline numbers of the gauge's next (default) outlook, the one
+    /// `GET /api/v1/gauges/{id}/outlook` serves without `?season=`; null while the gauge has
+    /// no outlook yet (no model serving).
+    pub next_outlook: Option<OutlookSummary>,
 }
 
 impl FeatureCollection {
-    /// The collection of the given gauges, in order.
-    pub fn of(gauges: &[Gauge]) -> Self {
+    /// The collection of the given features, in order.
+    pub fn of(features: Vec<Feature>) -> Self {
         Self {
             kind: "FeatureCollection".into(),
-            features: gauges.iter().map(Feature::of).collect(),
+            features,
         }
     }
 }
 
 impl Feature {
-    /// A gauge as a point feature, `[lon, lat]` order.
-    pub fn of(gauge: &Gauge) -> Self {
+    /// A gauge as a point feature, `[lon, lat]` order, with its next outlook's summary.
+    pub fn of(gauge: &Gauge, next_outlook: Option<OutlookSummary>) -> Self {
         Self {
             kind: "Feature".into(),
             id: gauge.id.clone(),
@@ -136,6 +142,7 @@ impl Feature {
                 flood_threshold_m: gauge.flood_threshold_m,
                 model_ready: gauge.model_ready,
                 href: format!("/api/v1/gauges/{}", gauge.id),
+                next_outlook,
             },
         }
     }

@@ -8,6 +8,7 @@ mod gauge;
 mod outlook;
 mod problem;
 mod skill;
+mod summary;
 mod upload;
 
 pub use gauge::{
@@ -21,6 +22,7 @@ pub use outlook::{
 };
 pub use problem::Problem;
 pub use skill::{EngineSkill, Hindcast, HindcastCase, ScoreRow, Skill, Verdict};
+pub use summary::{AtLeastK, OutlookSummary, TercileOdds};
 pub use upload::{
     EnsoForecast, EnsoForecastModel, EnsoProbabilities, InputVersion, SeriesEntry, SeriesList,
     UploadReceipt, VersionList,

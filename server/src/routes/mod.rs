@@ -2,6 +2,7 @@
 
 pub(crate) mod health;
 pub(crate) mod read;
+mod tables;
 pub(crate) mod write;
 
 use std::sync::Arc;

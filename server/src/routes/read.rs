@@ -12,9 +12,11 @@ use axum::response::{IntoResponse, Response};
 use serde::Deserialize;
 use tidetally_model::season::Season;
 
+use super::tables;
 use crate::api;
 use crate::catalog::{GaugeEntry, OnDemand, SerializedBody, ServedModel};
 use crate::error::AppError;
+use crate::negotiate::{Format, csv_response, negotiate, vary_accept};
 use crate::pipeline;
 use crate::query;
 use crate::state::{self, AppState};
@@ -103,7 +105,7 @@ pub async fn gauges(State(state): State<Arc<AppState>>) -> Result<Json<api::Gaug
     tag = "gauges",
     summary = "All gauges as a GeoJSON FeatureCollection (RFC 7946)",
     responses(
-        (status = 200, description = "The gauges as point features", content_type = "application/geo+json", body = crate::api::FeatureCollection),
+        (status = 200, description = "The gauges as point features; each feature's `properties.next_outlook` holds the headline numbers of the gauge's next outlook (null while it has none), so a map colours gauges without a second call", content_type = "application/geo+json", body = crate::api::FeatureCollection),
         (status = 304, description = "Not modified: If-None-Match matched the ETag"),
         (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
     )
@@ -111,8 +113,19 @@ pub async fn gauges(State(state): State<Arc<AppState>>) -> Result<Json<api::Gaug
 /// `GET /api/v1/gauges.geojson`.
 pub async fn gauges_geojson(State(state): State<Arc<AppState>>) -> Result<Response, AppError> {
     require_loaded(&state)?;
-    let gauges: Vec<api::Gauge> = state.catalog.list().iter().map(|e| e.to_wire()).collect();
-    let body = serde_json::to_vec(&api::FeatureCollection::of(&gauges)).unwrap_or_default();
+    let features = state
+        .catalog
+        .list()
+        .iter()
+        .map(|entry| {
+            let summary = default_outlook(entry)
+                .ok()
+                .map(|served| api::OutlookSummary::of(&served.value));
+            api::Feature::of(&entry.to_wire(), summary)
+        })
+        .collect();
+    let body = serde_json::to_vec(&api::FeatureCollection::of(features))
+        .map_err(|e| AppError::Internal(format!("GeoJSON: {e}")))?;
     Ok(([(header::CONTENT_TYPE, "application/geo+json")], body).into_response())
 }
 
@@ -168,76 +181,32 @@ pub async fn seasons(
     query: Result<Query<SeasonsQuery>, QueryRejection>,
 ) -> Result<Response, AppError> {
     let query = query_of(query)?;
+    let format = negotiate(query.format.as_deref(), &headers, JSON_OR_CSV)?;
     let entry = gauge_entry(&state, &id)?;
-    let wants_csv = match query.format.as_deref() {
-        Some("csv") => true,
-        Some("json") => false,
-        Some(other) => {
-            return Err(AppError::BadRequest(format!(
-                "format {other:?} must be json or csv"
-            )));
-        }
-        None => headers
-            .get(header::ACCEPT)
-            .and_then(|v| v.to_str().ok())
-            .is_some_and(|accept| accept.contains("text/csv")),
-    };
     let history = entry
         .history
         .as_ref()
         .map_err(|e| AppError::Pipeline(e.clone()))?;
-    let mut response = if wants_csv {
-        let csv = season_csv(&history.value).map_err(|e| AppError::Internal(e.to_string()))?;
-        ([(header::CONTENT_TYPE, "text/csv; charset=utf-8")], csv).into_response()
-    } else {
-        prepared(history, "application/json")
-    };
-    response
-        .headers_mut()
-        .insert(header::VARY, HeaderValue::from_static("accept"));
-    Ok(response)
+    match format {
+        Format::Csv => Ok(csv_response(
+            tables::season_csv(&history.value).map_err(csv_failed)?,
+        )),
+        Format::Json => Ok(json_varying(history)),
+    }
 }
 
-/// The season table as CSV: fixed columns, then one column per predictor sorted by name.
-fn season_csv(history: &api::SeasonHistory) -> Result<Vec<u8>, csv::Error> {
-    let predictors: std::collections::BTreeSet<&String> = history
-        .seasons
-        .iter()
-        .flat_map(|s| s.predictors.keys())
-        .collect();
-    let mut writer = csv::Writer::from_writer(Vec::new());
-    let mut header = vec![
-        "season",
-        "first_day",
-        "last_day",
-        "calendar_days",
-        "observed_days",
-        "flood_days",
-        "completeness",
-        "used_in_fit",
-    ];
-    header.extend(predictors.iter().map(|p| p.as_str()));
-    writer.write_record(&header)?;
-    for row in &history.seasons {
-        let mut record = vec![
-            row.season.clone(),
-            row.first_day.clone(),
-            row.last_day.clone(),
-            row.calendar_days.to_string(),
-            row.observed_days.to_string(),
-            row.flood_days.to_string(),
-            row.completeness.to_string(),
-            row.used_in_fit.to_string(),
-        ];
-        record.extend(predictors.iter().map(|p| {
-            row.predictors
-                .get(*p)
-                .map(f64::to_string)
-                .unwrap_or_default()
-        }));
-        writer.write_record(&record)?;
-    }
-    writer.into_inner().map_err(|e| e.into_error().into())
+/// What the endpoints with a CSV form offer, JSON first (the default).
+const JSON_OR_CSV: &[Format] = &[Format::Json, Format::Csv];
+
+/// A prepared JSON body of an endpoint that also answers CSV.
+fn json_varying<T>(p: &SerializedBody<T>) -> Response {
+    let mut response = prepared(p, "application/json");
+    vary_accept(&mut response);
+    response
+}
+
+fn csv_failed(err: csv::Error) -> AppError {
+    AppError::Internal(format!("CSV body: {err}"))
 }
 
 /// Query of the outlook endpoint.
@@ -245,6 +214,7 @@ fn season_csv(history: &api::SeasonHistory) -> Result<Vec<u8>, csv::Error> {
 pub struct OutlookQuery {
     season: Option<String>,
     k: Option<String>,
+    format: Option<String>,
 }
 
 #[utoipa::path(
@@ -253,23 +223,29 @@ pub struct OutlookQuery {
     operation_id = "getOutlook",
     tag = "outlooks",
     summary = "The gauge's outlook of minor flood days for a season",
-    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin"), ("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996. Default: the earliest season served.", example = "2026-DJF"), ("k" = Option<String>, Query, description = "Comma-separated counts of days `k` for `P(N >= k)`, days", example = "5,10")),
+    params(("id" = String, Path, description = "Gauge id", example = "port-tamsin"), ("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996. Default: the earliest season served.", example = "2026-DJF"), ("k" = Option<String>, Query, description = "Comma-separated counts of days `k` for `P(N >= k)`, days (the CSV table holds every count)", example = "5,10"), ("format" = Option<String>, Query, description = "`json` (default) or `csv`; wins over `Accept` (which may ask for `application/json` or `text/csv`, with q-values)", example = "json")),
     responses(
-        (status = 200, description = "The outlook", content_type = "application/json", body = crate::api::Outlook),
+        (status = 200, description = "The outlook; as `text/csv` (RFC 4180, when asked), its count table: a header line `days,probability,probability_at_least,probability_at_most`, then one row per count of days 0 to `season_days` with `pmf[days]`, `P(N >= days)` and `P(N <= days)`. The CSV has its own ETag.", content(
+            (crate::api::Outlook = "application/json"),
+            (String = "text/csv", example = json!("days,probability,probability_at_least,probability_at_most\r\n0,0.25,1,0.25\r\n1,0.5,0.75,0.75\r\n"))
+        )),
         (status = 304, description = "Not modified: If-None-Match matched the ETag"),
         (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 406, description = "Neither JSON nor CSV is acceptable (`?format=` or `Accept`)", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 404, description = "No such gauge, or the record cannot support an outlook of that season", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 422, description = "The gauge has no model", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 503, description = "Still loading, no model yet, or the on-demand queue is full", content_type = "application/problem+json", body = crate::api::Problem)
     )
 )]
-/// `GET /api/v1/gauges/{id}/outlook?season=LABEL&k=5,10`.
+/// `GET /api/v1/gauges/{id}/outlook?season=LABEL&k=5,10[&format=csv]`.
 pub async fn outlook(
     State(state): State<Arc<AppState>>,
     Path(id): Path<String>,
+    headers: HeaderMap,
     query: Result<Query<OutlookQuery>, QueryRejection>,
 ) -> Result<Response, AppError> {
     let query = query_of(query)?;
+    let format = negotiate(query.format.as_deref(), &headers, JSON_OR_CSV)?;
     let entry = gauge_entry(&state, &id)?;
     let model = entry
         .model
@@ -306,14 +282,23 @@ pub async fn outlook(
             &*on_demand
         }
     };
-    match &query.k {
-        None => Ok(prepared(served, "application/json")),
-        Some(text) => {
-            let days = query::parse_k_list(text, served.value.season_days)
-                .map_err(AppError::BadRequest)?;
+    let days = match &query.k {
+        Some(text) => Some(
+            query::parse_k_list(text, served.value.season_days).map_err(AppError::BadRequest)?,
+        ),
+        None => None,
+    };
+    match (format, days) {
+        (Format::Csv, _) => Ok(csv_response(
+            tables::outlook_csv(&served.value).map_err(csv_failed)?,
+        )),
+        (Format::Json, None) => Ok(json_varying(served)),
+        (Format::Json, Some(days)) => {
             let mut outlook = served.value.clone();
             outlook.exceedance = api::exceedance_from_pmf(&outlook.pmf, &days);
-            Ok(Json(outlook).into_response())
+            let mut response = Json(outlook).into_response();
+            vary_accept(&mut response);
+            Ok(response)
         }
     }
 }
@@ -382,6 +367,15 @@ async fn outlook_on_demand(
     .await?
 }
 
+/// The gauge's default (next) outlook: that of the earliest season its fit issued, the one
+/// `GET /api/v1/gauges/{id}/outlook` serves without `?season=`; or why it has none.
+fn default_outlook(entry: &GaugeEntry) -> Result<&SerializedBody<api::Outlook>, String> {
+    let model = entry.model.as_ref().map_err(ToString::to_string)?;
+    first_served_season(model.outlooks.keys(), entry)
+        .and_then(|label| model.outlooks.get(&label))
+        .ok_or_else(|| format!("gauge {} serves no outlook", entry.meta.id))
+}
+
 /// The earliest season (by first day) among served labels.
 fn first_served_season<'a>(
     labels: impl Iterator<Item = &'a String>,
@@ -425,6 +419,7 @@ pub async fn hindcast(
 #[derive(Debug, Deserialize)]
 pub struct OutlooksQuery {
     season: Option<String>,
+    format: Option<String>,
 }
 
 #[utoipa::path(
@@ -433,11 +428,15 @@ pub struct OutlooksQuery {
     operation_id = "listOutlooks",
     tag = "outlooks",
     summary = "Every gauge's outlook for a season, or each gauge's next outlook",
-    params(("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996. Without it, each gauge's default (next) outlook, each carrying its own season, and the set's season is null", example = "2026-DJF")),
+    params(("season" = Option<String>, Query, description = "Season label `YEAR-NAME`, named for the year its first month falls in: `1995-DJF` is December 1995 to February 1996. Without it, each gauge's default (next) outlook, each carrying its own season, and the set's season is null", example = "2026-DJF"), ("format" = Option<String>, Query, description = "`json` (default) or `csv`; wins over `Accept` (which may ask for `application/json` or `text/csv`, with q-values)", example = "json")),
     responses(
-        (status = 200, description = "The outlooks, and the gauges without one", content_type = "application/json", body = crate::api::OutlookSet),
+        (status = 200, description = "The outlooks, and the gauges without one; as `text/csv` (RFC 4180, when asked), one row per gauge ordered by id with the headline numbers of its outlook (those of `OutlookSummary`): `gauge,season,mean,p10,p90,plan_on_days,plan_on_low,plan_on_high,plan_on_basis,k,probability_at_least_k,tercile_reference,below,near,above,verdict,engine,plan_on_sentence,unavailable`; a gauge without an outlook has only `gauge` and its reason in `unavailable`. The CSV has its own ETag.", content(
+            (crate::api::OutlookSet = "application/json"),
+            (String = "text/csv", example = json!("gauge,season,mean,p10,p90,plan_on_days,plan_on_low,plan_on_high,plan_on_basis,k,probability_at_least_k,tercile_reference,below,near,above,verdict,engine,plan_on_sentence,unavailable\r\nport-tamsin,2026-DJF,4.2,1,8,4.2,1,8,outlook,5,0.38,1991-2020 climatology,0.2,0.3,0.5,beats_climatology,water,\"Plan on about 4 flood days (1 to 8).\",\r\n"))
+        )),
         (status = 304, description = "Not modified: If-None-Match matched the ETag"),
         (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
+        (status = 406, description = "Neither JSON nor CSV is acceptable (`?format=` or `Accept`)", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 503, description = "Still loading", content_type = "application/problem+json", body = crate::api::Problem)
     )
 )]
@@ -445,9 +444,11 @@ pub struct OutlooksQuery {
 /// season each gauge's default (next) outlook.
 pub async fn outlooks(
     State(state): State<Arc<AppState>>,
+    headers: HeaderMap,
     query: Result<Query<OutlooksQuery>, QueryRejection>,
-) -> Result<Json<api::OutlookSet>, AppError> {
+) -> Result<Response, AppError> {
     let query = query_of(query)?;
+    let format = negotiate(query.format.as_deref(), &headers, JSON_OR_CSV)?;
     require_loaded(&state)?;
     // Without `?season=`, each gauge's default outlook (the earliest season its fit issued).
     let asked = match &query.season {
@@ -469,10 +470,7 @@ pub async fn outlooks(
             .as_ref()
             .map_err(ToString::to_string)
             .and_then(|model| match &asked {
-                None => first_served_season(model.outlooks.keys(), &entry)
-                    .and_then(|label| model.outlooks.get(&label))
-                    .map(|p| p.value.clone())
-                    .ok_or_else(|| format!("gauge {gauge} serves no outlook")),
+                None => default_outlook(&entry).map(|p| p.value.clone()),
                 Some((label, name)) => {
                     query::parse_season(label, &entry.meta.seasons)
                         .map_err(|_| format!("gauge {gauge} does not define season {name}"))?;
@@ -493,7 +491,16 @@ pub async fn outlooks(
             Err(reason) => set.unavailable.push(api::Unavailable { gauge, reason }),
         }
     }
-    Ok(Json(set))
+    let mut response = match format {
+        Format::Csv => {
+            return Ok(csv_response(
+                tables::outlook_set_csv(&set).map_err(csv_failed)?,
+            ));
+        }
+        Format::Json => Json(set).into_response(),
+    };
+    vary_accept(&mut response);
+    Ok(response)
 }
 
 /// Query of the issued-outlooks endpoint.
@@ -699,51 +706,4 @@ pub async fn series(State(state): State<Arc<AppState>>) -> Result<Json<api::Seri
         })
         .collect();
     Ok(Json(api::SeriesList { series }))
-}
-
-#[cfg(test)]
-mod tests {
-    use std::collections::BTreeMap;
-
-    use super::*;
-
-    fn row(season: &str, predictors: &[(&str, f64)]) -> api::SeasonRow {
-        api::SeasonRow {
-            season: season.into(),
-            first_day: "2020-12-01".into(),
-            last_day: "2021-02-28".into(),
-            calendar_days: 90,
-            observed_days: 88,
-            flood_days: 3,
-            completeness: 88.0 / 90.0,
-            used_in_fit: true,
-            predictors: predictors
-                .iter()
-                .map(|(k, v)| ((*k).to_owned(), *v))
-                .collect::<BTreeMap<_, _>>(),
-            enso_category: None,
-        }
-    }
-
-    #[test]
-    fn season_csv_has_one_column_per_predictor_and_blanks_for_missing() {
-        let history = api::SeasonHistory {
-            gauge: "a".into(),
-            datum: "VBZ".into(),
-            flood_threshold_m: 0.85,
-            seasons: vec![
-                row("2020-DJF", &[("wind", 1.5), ("enso", -0.5)]),
-                row("2021-DJF", &[("enso", 0.25)]),
-            ],
-        };
-        let text = String::from_utf8(season_csv(&history).unwrap()).unwrap();
-        let lines: Vec<&str> = text.lines().collect();
-        assert_eq!(
-            lines[0],
-            "season,first_day,last_day,calendar_days,observed_days,flood_days,completeness,used_in_fit,enso,wind"
-        );
-        assert!(lines[1].starts_with("2020-DJF,2020-12-01,2021-02-28,90,88,3,"));
-        assert!(lines[1].ends_with(",true,-0.5,1.5"), "{}", lines[1]);
-        assert!(lines[2].ends_with(",true,0.25,"), "{}", lines[2]);
-    }
 }
