@@ -314,9 +314,9 @@ pub struct IssuedOutlook {
     pub model_version: String,
     /// Issue time (RFC 3339, UTC).
     pub issued_at: String,
-    /// The driver values the outlook was made from, by name (a JSON object as stored with
-    /// the outlook).
-    #[schema(value_type = Object)]
+    /// The driver values the outlook was made from, by driver name (as stored with the
+    /// outlook).
+    #[schema(value_type = std::collections::BTreeMap<String, crate::openapi::DriverInput>)]
     pub driver_inputs: serde_json::Value,
     /// The outlook as served.
     pub outlook: Outlook,
