@@ -266,6 +266,19 @@ pub enum SeriesKind {
     EnsoForecast,
 }
 
+/// The answers of every write operation to a request without write access (the
+/// `require_token` layer's), shared by their `#[utoipa::path]` attributes.
+#[derive(Debug, utoipa::IntoResponses)]
+pub enum WriteAccessProblems {
+    /// No valid bearer token (`/problems/unauthorized`).
+    #[response(status = 401, content_type = "application/problem+json")]
+    Unauthorized(crate::api::Problem),
+    /// Writes are disabled: the service runs without a write token
+    /// (`/problems/writes-disabled`).
+    #[response(status = 403, content_type = "application/problem+json")]
+    WritesDisabled(crate::api::Problem),
+}
+
 /// `GET /healthz`.
 #[derive(Debug, Serialize, ToSchema)]
 pub struct Health {
