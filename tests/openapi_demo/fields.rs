@@ -1,15 +1,16 @@
 //! Both ways between the document and the demo service's real answers: for every GET
 //! operation the document lists (so paths added later are covered too), each real answer's
 //! status and media type are documented, every field it carries is documented with the
-//! right type (and enum value), every required field is present, and every field the
-//! documented answers declare appears in at least one real answer.
+//! right type (and enum value), every required field is present, a field present in every
+//! answer is required, and every field the documented answers declare appears in at least
+//! one real answer.
 
 use std::collections::BTreeSet;
 
 use serde_json::Value;
 
 use crate::demo::{get, get_json};
-use crate::schema::{Doc, Field};
+use crate::schema::{Doc, Field, Findings};
 use crate::structure;
 
 /// A gauge id the demo does not have, for the documented 404 of every `{id}` path.
@@ -146,7 +147,7 @@ fn every_served_field_is_documented_and_every_documented_field_is_served() {
         .to_owned();
 
     let mut documented: BTreeSet<Field> = BTreeSet::new();
-    let mut seen: BTreeSet<Field> = BTreeSet::new();
+    let mut served = Findings::default();
     let mut answers = 0;
     for (path, item) in doc["paths"].as_object().expect("paths") {
         let Some(op) = item.get("get") else {
@@ -210,11 +211,17 @@ fn every_served_field_is_documented_and_every_documented_field_is_served() {
                 &schema_at,
                 &format!("GET {url}"),
             );
-            seen.extend(findings.seen);
-            errors.extend(findings.errors);
+            served.merge(findings);
         }
     }
-    for (owner, name) in documented.difference(&seen) {
+    errors.append(&mut served.errors);
+    for (owner, name) in served.always_served_but_optional() {
+        errors.push(format!(
+            "field {name} of {owner} is in every real answer but not required"
+        ));
+    }
+    let seen = &served.seen;
+    for (owner, name) in documented.difference(seen) {
         errors.push(format!(
             "field {name} of {owner} is documented but in no real answer"
         ));
@@ -222,7 +229,7 @@ fn every_served_field_is_documented_and_every_documented_field_is_served() {
     eprintln!(
         "{answers} answers; {} documented fields, {} of them seen",
         documented.len(),
-        documented.intersection(&seen).count()
+        documented.intersection(seen).count()
     );
     let errors = distinct(errors);
     assert!(
@@ -236,8 +243,8 @@ fn every_served_field_is_documented_and_every_documented_field_is_served() {
 #[test]
 fn the_walker_finds_undocumented_and_unserved_fields() {
     // The check itself, on a hand-made document: an extra field, a missing required one, a
-    // wrong type and an enum value outside the set are all reported, and a field no value
-    // carries is left unseen.
+    // wrong type and an enum value outside the set are all reported, a field no value
+    // carries is left unseen, and an optional field every value carries is named.
     let doc = serde_json::json!({
         "components": {"schemas": {
             "Thing": {
@@ -268,6 +275,13 @@ fn the_walker_finds_undocumented_and_unserved_fields() {
     assert_eq!(
         unseen,
         vec![&("#/components/schemas/Thing".to_owned(), "never".to_owned())]
+    );
+    assert_eq!(
+        good.always_served_but_optional(),
+        vec![
+            &("#/components/schemas/Inner".to_owned(), "x".to_owned()),
+            &("#/components/schemas/Thing".to_owned(), "inner".to_owned())
+        ]
     );
     let bad = walker.check(
         &serde_json::json!({"n": 1.5, "kind": "c", "inner": {"x": 2, "y": 3}, "extra": true}),

@@ -9,7 +9,7 @@
 //! 3.1, OpenAPI Specification 3.1.0 section 4.8.24): `type` may be a string or an array of
 //! them, `integer` values are also `number`s, `oneOf` needs exactly one match.
 
-use std::collections::BTreeSet;
+use std::collections::{BTreeMap, BTreeSet};
 
 use serde_json::Value;
 
@@ -28,6 +28,34 @@ pub struct Findings {
     pub seen: BTreeSet<Field>,
     /// Mismatches, each naming where in the value and the schema.
     pub errors: Vec<String>,
+    /// How many object values each object schema (by pointer) was checked against.
+    pub objects: BTreeMap<String, usize>,
+    /// How many of those carried each field their schema does not require.
+    pub optional: BTreeMap<Field, usize>,
+}
+
+impl Findings {
+    /// Adds what another check found.
+    pub fn merge(&mut self, other: Findings) {
+        self.seen.extend(other.seen);
+        self.errors.extend(other.errors);
+        for (k, n) in other.objects {
+            *self.objects.entry(k).or_default() += n;
+        }
+        for (k, n) in other.optional {
+            *self.optional.entry(k).or_default() += n;
+        }
+    }
+
+    /// Fields served in every object value of their schema that the schema does not
+    /// require (a client must then treat an always-present field as maybe absent).
+    pub fn always_served_but_optional(&self) -> Vec<&Field> {
+        self.optional
+            .iter()
+            .filter(|((owner, _), n)| self.objects.get(owner) == Some(n))
+            .map(|(field, _)| field)
+            .collect()
+    }
 }
 
 /// The JSON Schema type name of a value.
@@ -111,7 +139,7 @@ impl<'a> Doc<'a> {
                 };
                 if ok {
                     for m in matches {
-                        found.seen.extend(m.seen);
+                        found.merge(m);
                     }
                 } else {
                     found.errors.push(format!(
@@ -223,10 +251,25 @@ impl<'a> Doc<'a> {
         }
         let properties = &schema["properties"];
         let composed = schema["allOf"].is_array();
+        let required: Vec<&str> = schema["required"]
+            .as_array()
+            .into_iter()
+            .flatten()
+            .filter_map(Value::as_str)
+            .collect();
+        if properties.is_object() {
+            *found.objects.entry(at.to_owned()).or_default() += 1;
+        }
         for (name, field) in fields {
             let place = format!("{place}.{name}");
             if let Some(property) = properties.get(name) {
                 found.seen.insert((at.to_owned(), name.clone()));
+                if !required.contains(&name.as_str()) {
+                    *found
+                        .optional
+                        .entry((at.to_owned(), name.clone()))
+                        .or_default() += 1;
+                }
                 self.check_into(
                     field,
                     property,
@@ -248,10 +291,8 @@ impl<'a> Doc<'a> {
                     .push(format!("{place}: field not documented in {at}"));
             }
         }
-        for name in schema["required"].as_array().into_iter().flatten() {
-            if let Some(name) = name.as_str()
-                && !fields.contains_key(name)
-            {
+        for name in required {
+            if !fields.contains_key(name) {
                 found
                     .errors
                     .push(format!("{place}: required field {name} of {at} missing"));
