@@ -140,4 +140,5 @@ fn a_generated_client_reads_the_demo_outlooks() {
         Some(crate::demo::DEMO_GAUGES),
         "every demo gauge's next outlook"
     );
+    let _ = std::fs::remove_dir_all(&dir);
 }

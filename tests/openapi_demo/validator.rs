@@ -39,6 +39,7 @@ fn the_document_is_valid_openapi_3_1() {
     );
     let said = String::from_utf8_lossy(&output.stdout);
     assert!(said.contains("OK"), "the validator did not say OK: {said}");
+    let _ = std::fs::remove_dir_all(&dir);
 }
 
 #[test]
@@ -69,4 +70,5 @@ fn the_validator_rejects_a_broken_document() {
         "a schema of type \"record\" passed: {}",
         String::from_utf8_lossy(&output.stdout)
     );
+    let _ = std::fs::remove_dir_all(&dir);
 }
