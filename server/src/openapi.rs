@@ -57,7 +57,7 @@ carry an ETag and answer `304` to a matching `If-None-Match`. Writes need an \
         crate::routes::write::refit,
     ),
     components(schemas(crate::api::Problem, ProblemType)),
-    modifiers(&BearerToken),
+    modifiers(&BearerToken, &NullableDescriptions),
     tags(
         (name = "health", description = "Liveness and readiness probes."),
         (name = "gauges", description = "Gauges, their season tables and versions."),
@@ -78,6 +78,41 @@ impl Modify for BearerToken {
             "bearer",
             SecurityScheme::Http(HttpBuilder::new().scheme(HttpAuthScheme::Bearer).build()),
         );
+    }
+}
+
+/// Moves the description of a nullable reference property (`Option<T>` of a schema type,
+/// which utoipa writes as `oneOf: [null, {$ref, description}]`) up to the property itself,
+/// where generators and readers look for it.
+struct NullableDescriptions;
+
+impl Modify for NullableDescriptions {
+    fn modify(&self, openapi: &mut utoipa::openapi::OpenApi) {
+        use utoipa::openapi::{RefOr, Schema};
+        let Some(components) = openapi.components.as_mut() else {
+            return;
+        };
+        for schema in components.schemas.values_mut() {
+            let RefOr::T(Schema::Object(object)) = schema else {
+                continue;
+            };
+            for property in object.properties.values_mut() {
+                let RefOr::T(Schema::OneOf(one_of)) = property else {
+                    continue;
+                };
+                if one_of.description.is_some() {
+                    continue;
+                }
+                for item in &mut one_of.items {
+                    if let RefOr::Ref(reference) = item
+                        && !reference.description.is_empty()
+                    {
+                        one_of.description = Some(std::mem::take(&mut reference.description));
+                        break;
+                    }
+                }
+            }
+        }
     }
 }
 
@@ -234,6 +269,19 @@ pub enum SeriesKind {
     EnsoForecast,
 }
 
+/// The answers of every write operation to a request without write access (the
+/// `require_token` layer's), shared by their `#[utoipa::path]` attributes.
+#[derive(Debug, utoipa::IntoResponses)]
+pub enum WriteAccessProblems {
+    /// No valid bearer token (`/problems/unauthorized`).
+    #[response(status = 401, content_type = "application/problem+json")]
+    Unauthorized(crate::api::Problem),
+    /// Writes are disabled: the service runs without a write token
+    /// (`/problems/writes-disabled`).
+    #[response(status = 403, content_type = "application/problem+json")]
+    WritesDisabled(crate::api::Problem),
+}
+
 /// `GET /healthz`.
 #[derive(Debug, Serialize, ToSchema)]
 pub struct Health {
@@ -276,18 +324,83 @@ pub struct Pruned {
     pub kept_newest: u64,
 }
 
-/// The OpenAPI document itself (an OpenAPI 3.1 object, see the OpenAPI Specification).
+/// The OpenAPI document itself (an OpenAPI 3.1 object, OpenAPI Specification 3.1.0 section
+/// 4.8.1); its parts are described here as far as a client reads them.
 #[derive(Debug, Serialize, ToSchema)]
 pub struct OpenApiDocument {
     /// The OpenAPI version, `3.1.0`.
+    #[schema(example = "3.1.0")]
     pub openapi: String,
-    /// Title, version and description.
-    #[schema(value_type = Object)]
-    pub info: serde_json::Value,
-    /// The operations by path.
-    #[schema(value_type = Object)]
+    /// Title, version, description and licence of the API.
+    pub info: DocumentInfo,
+    /// The operations by path: each a Path Item Object (OpenAPI Specification 3.1.0 section
+    /// 4.8.9).
+    #[schema(value_type = BTreeMap<String, serde_json::Value>)]
     pub paths: serde_json::Value,
-    /// Schemas and security schemes.
-    #[schema(value_type = Object)]
-    pub components: serde_json::Value,
+    /// The reusable parts: `schemas` and `securitySchemes`.
+    pub components: DocumentComponents,
+    /// The operations' tags, each with a description.
+    pub tags: Vec<DocumentTag>,
+}
+
+/// The document's Info Object (OpenAPI Specification 3.1.0 section 4.8.2).
+#[derive(Debug, Serialize, ToSchema)]
+pub struct DocumentInfo {
+    /// The API's title, `tidetally`.
+    pub title: String,
+    /// The service's version.
+    pub version: String,
+    /// What the API serves, the season label convention, errors, caching and writes.
+    pub description: String,
+    /// The API's licence.
+    pub license: DocumentLicense,
+}
+
+/// The document's License Object (OpenAPI Specification 3.1.0 section 4.8.4).
+#[derive(Debug, Serialize, ToSchema)]
+pub struct DocumentLicense {
+    /// The licence's name.
+    #[schema(example = "Apache-2.0")]
+    pub name: String,
+    /// Its SPDX identifier.
+    #[schema(example = "Apache-2.0")]
+    pub identifier: String,
+}
+
+/// The document's Components Object (OpenAPI Specification 3.1.0 section 4.8.7).
+#[derive(Debug, Serialize, ToSchema)]
+pub struct DocumentComponents {
+    /// The wire types as JSON Schemas (2020-12 dialect), by name.
+    #[schema(value_type = BTreeMap<String, serde_json::Value>)]
+    pub schemas: serde_json::Value,
+    /// The security schemes the write operations name (`bearer`), by name.
+    #[serde(rename = "securitySchemes")]
+    #[schema(value_type = BTreeMap<String, serde_json::Value>)]
+    pub security_schemes: serde_json::Value,
+}
+
+/// A Tag Object (OpenAPI Specification 3.1.0 section 4.8.22).
+#[derive(Debug, Serialize, ToSchema)]
+pub struct DocumentTag {
+    /// The tag's name, as the operations name it.
+    #[schema(example = "outlooks")]
+    pub name: String,
+    /// What the tagged operations do.
+    pub description: String,
+}
+
+/// The driver values behind an issued outlook, as stored with it (one per driver name).
+#[derive(Debug, Serialize, ToSchema)]
+pub struct DriverInput {
+    /// The value used for the season (the mean over scenarios when it is forecast), in
+    /// `unit`.
+    pub value: f64,
+    /// Unit of the values, e.g. `degC`, `days`, `m/s`, `m`.
+    pub unit: String,
+    /// 10th percentile of the value over the outlook's scenarios, in `unit`.
+    pub p10: f64,
+    /// 90th percentile of the value over the outlook's scenarios, in `unit`.
+    pub p90: f64,
+    /// Where the value comes from, in words.
+    pub source: String,
 }

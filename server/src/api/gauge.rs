@@ -30,10 +30,12 @@ pub struct Gauge {
     #[schema(example = json!(["DJF", "MAM", "JJA", "SON"]))]
     pub seasons: Vec<String>,
     /// The stored water-level record, when one has been uploaded.
+    #[schema(required = true)]
     pub record: Option<RecordSpan>,
     /// Whether a fitted model is serving outlooks for this gauge.
     pub model_ready: bool,
     /// Why no model is serving, when `model_ready` is false.
+    #[schema(required = true)]
     pub model_status: Option<String>,
 }
 
@@ -188,6 +190,6 @@ pub struct SeasonRow {
     pub predictors: BTreeMap<String, f64>,
     /// ENSO category of the season's own months (`la_nina`, `neutral`, `el_nino`), when the
     /// ENSO index covers them.
-    #[schema(value_type = Option<crate::openapi::EnsoCategory>)]
+    #[schema(value_type = Option<crate::openapi::EnsoCategory>, required = true)]
     pub enso_category: Option<String>,
 }

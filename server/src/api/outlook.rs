@@ -38,6 +38,7 @@ pub struct Outlook {
     /// season), days.
     pub climatological_mean: f64,
     /// The most recent observed season of the same name, if any.
+    #[schema(required = true)]
     pub last_season_observed: Option<LastSeason>,
     /// The drivers the model used, with their values for this season.
     pub drivers: Vec<DriverUse>,
@@ -53,6 +54,7 @@ pub struct Outlook {
     pub explanation: Vec<String>,
     /// Mean flood days expected from the sea-level trend alone, days, when the gauge has a
     /// trend.
+    #[schema(required = true)]
     pub trend_only_mean: Option<f64>,
     /// Count family of the fitted model: `poisson` or `negbin`.
     #[schema(value_type = crate::openapi::Family)]
@@ -64,43 +66,54 @@ pub struct Outlook {
     /// The engine the distribution comes from: `water` (daily high waters simulated on the
     /// known tide) or `count` (the seasonal count model).
     #[serde(default)]
-    #[schema(value_type = crate::openapi::Engine)]
+    #[schema(value_type = crate::openapi::Engine, required = true)]
     pub engine: String,
     /// Why that engine leads, in one plain sentence.
     #[serde(default)]
+    #[schema(required = true)]
     pub engine_reason: String,
     /// The other engine's answer, when it ran.
     #[serde(default)]
+    #[schema(required = true)]
     pub other_engine: Option<EngineSummary>,
     /// The season's calendar: each day's predicted high water and chance of a flood day
     /// (empty when the water-level engine could not run).
     #[serde(default)]
+    #[schema(required = true)]
     pub days: Vec<DayChance>,
     /// The water-level engine's fitted driver effects on the daily high water.
     #[serde(default)]
+    #[schema(required = true)]
     pub water_effects: Vec<WaterEffect>,
     /// The one number to plan with, consistent with the skill verdict.
     #[serde(default)]
+    #[schema(required = true)]
     pub plan_on: PlanOn,
     /// The season's first calendar day (`YYYY-MM-DD`; a label's year is the year the season
     /// starts, so `2026-DJF` runs 2026-12-01 to 2027-02-28).
     #[serde(default)]
+    #[schema(required = true)]
     pub first_day: String,
     /// The season's last calendar day (`YYYY-MM-DD`).
     #[serde(default)]
+    #[schema(required = true)]
     pub last_day: String,
     /// What the counts of `pmf`, `mean`, `median`, `p10` and `p90` count: `days`.
     #[serde(default)]
+    #[schema(required = true)]
     pub count_unit: String,
     /// The last day this outlook stands for (`YYYY-MM-DD`, the season's last day); after it
     /// the observed count replaces the outlook.
     #[serde(default)]
+    #[schema(required = true)]
     pub valid_until: String,
     /// The water-level record's last local day (`YYYY-MM-DD`) the outlook was made from.
     #[serde(default)]
+    #[schema(required = true)]
     pub record_last_day: Option<String>,
     /// What would change this outlook, in plain sentences.
     #[serde(default)]
+    #[schema(required = true)]
     pub would_change: Vec<String>,
 }
 
@@ -273,7 +286,7 @@ pub struct DriverUse {
 pub struct OutlookSet {
     /// The season asked for; null when the set holds each gauge's default (next) outlook,
     /// each carrying its own season.
-    #[schema(example = "2026-DJF")]
+    #[schema(example = "2026-DJF", required = true)]
     pub season: Option<String>,
     /// Outlooks of the gauges that have one, ordered by gauge id.
     pub outlooks: Vec<Outlook>,
@@ -314,13 +327,14 @@ pub struct IssuedOutlook {
     pub model_version: String,
     /// Issue time (RFC 3339, UTC).
     pub issued_at: String,
-    /// The driver values the outlook was made from, by name (a JSON object as stored with
-    /// the outlook).
-    #[schema(value_type = Object)]
+    /// The driver values the outlook was made from, by driver name (as stored with the
+    /// outlook).
+    #[schema(value_type = std::collections::BTreeMap<String, crate::openapi::DriverInput>)]
     pub driver_inputs: serde_json::Value,
     /// The outlook as served.
     pub outlook: Outlook,
     /// Scores against what happened, once the season's data is in.
+    #[schema(required = true)]
     pub verification: Option<SeasonVerification>,
 }
 

@@ -36,16 +36,17 @@ pub struct Skill {
     pub scores: Vec<ScoreRow>,
     /// The engine whose skill this is: `water` or `count`.
     #[serde(default)]
-    #[schema(value_type = crate::openapi::Engine)]
+    #[schema(value_type = crate::openapi::Engine, required = true)]
     pub engine: String,
     /// How past seasons' ENSO was known: `at_issue` (as a real outlook would have known it)
     /// or `observed` (perfect ENSO, an upper bound).
     #[serde(default)]
-    #[schema(value_type = crate::openapi::EnsoKnowledge)]
+    #[schema(value_type = crate::openapi::EnsoKnowledge, required = true)]
     pub enso: String,
     /// The verdict with perfect ENSO (an upper bound), when the engines use the season's own
     /// ENSO.
     #[serde(default)]
+    #[schema(required = true)]
     pub perfect_enso_text: Option<String>,
 }
 
@@ -62,6 +63,7 @@ pub struct ScoreRow {
     pub climatology: f64,
     /// Mean score of the trend-only model, in the score's unit (`null` when the gauge has no
     /// sea-level trend).
+    #[schema(required = true)]
     pub trend_only: Option<f64>,
     /// Skill score against climatology: `1 - model / climatology`, dimensionless (1 is
     /// perfect, 0 no better than climatology).
@@ -84,6 +86,7 @@ pub struct Hindcast {
     pub cases: Vec<HindcastCase>,
     /// Both engines side by side.
     #[serde(default)]
+    #[schema(required = true)]
     pub engines: Vec<EngineSkill>,
 }
 
@@ -119,8 +122,10 @@ pub struct HindcastCase {
     pub crps: f64,
     /// The water-level engine's predicted mean, days, when it ran.
     #[serde(default)]
+    #[schema(required = true)]
     pub water_mean: Option<f64>,
     /// The water-level engine's CRPS, days, when it ran.
     #[serde(default)]
+    #[schema(required = true)]
     pub water_crps: Option<f64>,
 }

@@ -9,6 +9,7 @@ pub struct UploadReceipt {
     /// What was stored, e.g. `gauge`, `levels`, `driver:enso`, `forecast:enso`.
     pub stored: String,
     /// The gauge it belongs to, if any.
+    #[schema(required = true)]
     pub gauge: Option<String>,
     /// Data rows accepted, count (0 for documents such as a gauge TOML).
     pub rows: u64,
@@ -19,12 +20,16 @@ pub struct UploadReceipt {
     /// What the service does next, in plain words.
     pub note: String,
     /// The stored version's id (`null` when nothing new was stored).
+    #[schema(required = true)]
     pub version: Option<i64>,
     /// Water levels: readings at times the record did not have (else `null`).
+    #[schema(required = true)]
     pub added: Option<u64>,
     /// Water levels: readings that replaced a stored one with a different value (else `null`).
+    #[schema(required = true)]
     pub changed: Option<u64>,
     /// Water levels: readings equal to the stored ones (else `null`).
+    #[schema(required = true)]
     pub unchanged: Option<u64>,
 }
 

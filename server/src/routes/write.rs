@@ -123,8 +123,7 @@ fn receipt(
         (status = 400, description = "Bad body", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 413, description = "The body is too large", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `PUT /api/v1/gauges/{id}`: a gauge TOML whose `id` matches the path.
@@ -191,8 +190,7 @@ pub struct LevelsQuery {
         (status = 409, description = "A replace would shrink the record without `confirm=shrink`", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 413, description = "The body is too large", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `PUT /api/v1/gauges/{id}/levels`: a water-level CSV, plain or gzip, merged into the
@@ -310,8 +308,7 @@ pub async fn put_levels(
     responses(
         (status = 200, description = "Retired", body = crate::openapi::Retired),
         (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `DELETE /api/v1/gauges/{id}`: retires the gauge (hidden, its data kept).
@@ -345,8 +342,7 @@ pub async fn retire_gauge(
         (status = 200, description = "Restored", body = crate::api::UploadReceipt),
         (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `POST /api/v1/gauges/{id}/versions/{input}/{version}/restore`: stores an earlier version
@@ -424,8 +420,7 @@ pub struct PruneQuery {
         (status = 200, description = "Pruned", body = crate::openapi::Pruned),
         (status = 400, description = "Bad query value", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `POST /api/v1/gauges/{id}/versions/prune?keep=N`: deletes all but the newest `N`
@@ -475,8 +470,7 @@ pub async fn prune_versions(
         (status = 400, description = "Bad series name", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 413, description = "The body is too large", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `PUT /api/v1/drivers/{kind}/{name}`: a new version of a named driver series (`enso`
@@ -522,8 +516,7 @@ pub async fn put_series(
         (status = 200, description = "Forecast stored", body = crate::api::UploadReceipt),
         (status = 400, description = "Bad series name", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 422, description = "The upload failed validation (the problem names the line and field)", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `PUT /api/v1/forecasts/enso/{name}`: an ENSO forecast JSON for a target season, as a new
@@ -620,8 +613,7 @@ pub fn users_of(state: &AppState, key: &SeriesKey) -> Result<Vec<String>, AppErr
         (status = 200, description = "Restored", body = crate::api::UploadReceipt),
         (status = 404, description = "No such kind, series or version", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 400, description = "Bad series name", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `POST /api/v1/drivers/{kind}/{name}/versions/{version}/restore`: stores an earlier
@@ -668,8 +660,7 @@ pub async fn restore_series(
         (status = 404, description = "No such gauge", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 422, description = "The fit failed; the old model keeps serving", content_type = "application/problem+json", body = crate::api::Problem),
         (status = 503, description = "A pipeline step is not available", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 401, description = "No valid bearer token", content_type = "application/problem+json", body = crate::api::Problem),
-        (status = 403, description = "Writes are disabled", content_type = "application/problem+json", body = crate::api::Problem)
+        crate::openapi::WriteAccessProblems
     )
 )]
 /// `POST /api/v1/gauges/{id}/refit`: rebuilds the gauge's model on its newest inputs; swaps
