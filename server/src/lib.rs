@@ -13,6 +13,7 @@ pub mod cli;
 pub mod config;
 pub mod connections;
 mod cors;
+pub mod demo;
 pub mod error;
 pub mod etag;
 pub mod merge;

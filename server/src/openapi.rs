@@ -397,10 +397,9 @@ pub struct DriverInput {
     pub value: f64,
     /// Unit of the values, e.g. `degC`, `days`, `m/s`, `m`.
     pub unit: String,
-    /// 10th percentile of the value over the outlook's scenarios, in `unit`.
-    pub p10: f64,
-    /// 90th percentile of the value over the outlook's scenarios, in `unit`.
-    pub p90: f64,
+    /// 10th and 90th percentiles `[low, high]` of the value over the outlook's scenarios, in
+    /// `unit`.
+    pub value_range: [f64; 2],
     /// Where the value comes from, in words.
     pub source: String,
 }

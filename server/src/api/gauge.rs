@@ -114,6 +114,7 @@ pub struct GaugeProperties {
     /// The headline numbers of the gauge's next (default) outlook, the one
     /// `GET /api/v1/gauges/{id}/outlook` serves without `?season=`; null while the gauge has
     /// no outlook yet (no model serving).
+    #[schema(required = true)]
     pub next_outlook: Option<OutlookSummary>,
 }
 

@@ -20,9 +20,11 @@ pub struct OutlookSummary {
     pub plan_on: PlanOn,
     /// The exceedance the outlook headlines, `P(N >= k)` for the gauge's `k`; null when the
     /// outlook lists no exceedance.
+    #[schema(required = true)]
     pub at_least_k: Option<AtLeastK>,
     /// Odds of the below / near / above normal terciles of the 1991-2020 climatology; null
     /// when the outlook has no climatology terciles.
+    #[schema(required = true)]
     pub terciles: Option<TercileOdds>,
     /// The out-of-sample skill verdict (the outlook's `skill.verdict`).
     pub verdict: Verdict,

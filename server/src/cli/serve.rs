@@ -51,8 +51,49 @@ fn init_tracing(json: bool) {
     };
 }
 
+/// Where the gauges of an empty store come from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum DataSource {
+    /// The data folder on disk (asked for, or the checkout's `demo-data/gauges`).
+    Folder,
+    /// The demo coastline compiled into the binary (no folder asked for, none found).
+    CarriedDemo,
+}
+
+/// Chooses the data source; a folder asked for but missing is an error.
+fn data_source(config: &ServeConfig) -> anyhow::Result<DataSource> {
+    if config.data.is_dir() {
+        Ok(DataSource::Folder)
+    } else if config.data_explicit {
+        anyhow::bail!("data folder {} does not exist", config.data.display())
+    } else {
+        Ok(DataSource::CarriedDemo)
+    }
+}
+
+/// The first log line: where the gauges come from.
+fn log_data_source(config: &ServeConfig, source: DataSource) {
+    match source {
+        DataSource::Folder if config.data_explicit => tracing::info!(
+            data = %config.data.display(),
+            "data: the gauges in {}", config.data.display()
+        ),
+        DataSource::Folder => tracing::info!(
+            data = %config.data.display(),
+            "data: the invented demo coastline from the files in {}", config.data.display()
+        ),
+        DataSource::CarriedDemo => tracing::info!(
+            data = "carried",
+            "data: the invented demo coastline carried in this binary ({} not found here)",
+            config.data.display()
+        ),
+    }
+}
+
 async fn serve(config: ServeConfig) -> anyhow::Result<()> {
-    let store = open_and_seed(&config).await?;
+    let source = data_source(&config)?;
+    log_data_source(&config, source);
+    let store = open_and_seed(&config, source).await?;
     let state = AppState::new(store, config.token.clone(), config.cache_max_age);
     let options = HttpOptions {
         request_timeout: config.request_timeout,
@@ -94,30 +135,39 @@ async fn serve(config: ServeConfig) -> anyhow::Result<()> {
     Ok(())
 }
 
-/// Opens the store; an empty store is seeded from the data folder. A missing folder is an
-/// error when it was asked for and a warning for the default.
-async fn open_and_seed(config: &ServeConfig) -> anyhow::Result<Store> {
+/// Opens the store; an empty store is seeded from `source`.
+async fn open_and_seed(config: &ServeConfig, source: DataSource) -> anyhow::Result<Store> {
     let config = config.clone();
     tokio::task::spawn_blocking(move || -> anyhow::Result<Store> {
         let store = Store::open(&config.db)
             .with_context(|| format!("opening the store {}", config.db.display()))?;
         let empty = store.call_blocking(|c| Ok(store::list_gauges(c)?.is_empty()))?;
-        if empty {
-            if config.data.is_dir() {
-                let n = store
-                    .call_blocking(|c| Ok(state::seed_from_dir(c, &config.data)))?
-                    .with_context(|| format!("loading gauges from {}", config.data.display()))?;
-                tracing::info!(gauges = n, dir = %config.data.display(), "store seeded");
-            } else if config.data_explicit {
-                anyhow::bail!("data folder {} does not exist", config.data.display());
-            } else {
-                tracing::warn!(dir = %config.data.display(), "no demo data folder; starting with an empty store");
-            }
+        if !empty {
+            return Ok(store);
         }
+        let n = match source {
+            DataSource::Folder => seed(&store, &config.data)?,
+            DataSource::CarriedDemo => {
+                let dir = std::env::temp_dir()
+                    .join(format!("tidetally-carried-demo-{}", std::process::id()));
+                let gauges = crate::demo::unpack(&dir)
+                    .with_context(|| format!("unpacking the carried demo into {}", dir.display()));
+                let seeded = gauges.and_then(|g| seed(&store, &g));
+                let _ = std::fs::remove_dir_all(&dir);
+                seeded?
+            }
+        };
+        tracing::info!(gauges = n, "store seeded");
         Ok(store)
     })
     .await
     .context("store task")?
+}
+
+fn seed(store: &Store, gauges: &std::path::Path) -> anyhow::Result<usize> {
+    store
+        .call_blocking(|c| Ok(state::seed_from_dir(c, gauges)))?
+        .with_context(|| format!("loading gauges from {}", gauges.display()))
 }
 
 async fn shutdown_signal() {
