@@ -54,6 +54,7 @@ fn init_tracing(json: bool) {
 async fn serve(config: ServeConfig) -> anyhow::Result<()> {
     let store = open_and_seed(&config).await?;
     let state = AppState::new(store, config.token.clone(), config.cache_max_age);
+    state.clock.set(config.today);
     let options = HttpOptions {
         request_timeout: config.request_timeout,
         cors_origins: config.cors_origins.clone(),
