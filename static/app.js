@@ -51,6 +51,12 @@
     return { year, name, first: label, last: label };
   }
 
+  /** "DJF" -> "December to February". */
+  function seasonMonths(name) {
+    const season = seasonWords(`2000-${name}`);
+    return season && season.first !== `2000-${name}` ? `${season.first.split(" ")[0]} to ${season.last.split(" ")[0]}` : name;
+  }
+
   async function getJson(url) {
     let response;
     try {
@@ -166,6 +172,14 @@
     });
   }
 
+  /** The gauge's local calendar day (`YYYY-MM-DD`) of an RFC 3339 time, at its UTC offset. */
+  function localDay(iso, offset) {
+    const m = /^([+-])(\d{2}):(\d{2})$/.exec(offset || "");
+    const minutes = m ? (m[1] === "-" ? -1 : 1) * (Number(m[2]) * 60 + Number(m[3])) : 0;
+    const t = Date.parse(iso);
+    return Number.isFinite(t) ? new Date(t + minutes * 60000).toISOString().slice(0, 10) : String(iso).slice(0, 10);
+  }
+
   function markChosen(id) {
     $("gauge-select").value = id;
     document.querySelectorAll(".gauge-dot").forEach((n) => {
@@ -174,7 +188,8 @@
     const g = state.gauges.find((x) => x.id === id);
     if (g) {
       $("gauge-facts").textContent = `Minor flood threshold ${g.flood_threshold_m.toFixed(2)} m above ${g.datum}. ` +
-        (g.record ? `Water levels from ${g.record.first.slice(0, 10)} to ${g.record.last.slice(0, 10)}.` : "No water levels stored yet.");
+        (g.record ? `Water levels from ${localDay(g.record.first, g.utc_offset)} to ${localDay(g.record.last, g.utc_offset)} ` +
+          "(the gauge's local days)." : "No water levels stored yet.");
     }
   }
 
@@ -366,8 +381,7 @@
   function renderHowChecked(skill) {
     const box = $("how-checked-body");
     box.textContent = "";
-    const season = seasonWords(`2000-${skill.season_name}`);
-    const months = season ? `${season.first.split(" ")[0]} to ${season.last.split(" ")[0]}` : skill.season_name;
+    const months = seasonMonths(skill.season_name);
     box.append(el("p", { text: `Each of ${skill.seasons_scored} past ${months} seasons was forecast by a model fitted ` +
       "without that season, then compared with what happened, and with two simple references: the long-term " +
       "average and the sea-level trend alone. The scores below are averages over those seasons." }));
@@ -548,7 +562,7 @@
       .map((r) => ({ season: r.season, year: Number(r.season.slice(0, 4)), flood_days: r.flood_days,
         observed_days: r.observed_days, enso: ensoCategory(r.predictors ? r.predictors.enso : null) }));
     state.rows = rows;
-    if (!rows.length) { unavailable("history", `no complete ${seasonName} seasons in the record`); return; }
+    if (!rows.length) { unavailable("history", `no complete ${seasonMonths(seasonName)} seasons in the record`); return; }
     const trend = linearTrend(rows.map((r) => r.year), rows.map((r) => r.flood_days));
     let band = null;
     if (hindcast) {
@@ -561,7 +575,7 @@
     const counts = { la_nina: 0, neutral: 0, el_nino: 0, unknown: 0 };
     rows.forEach((r) => { counts[r.enso] += 1; });
     const most = rows.reduce((a, b) => (b.flood_days > a.flood_days ? b : a));
-    $("alt-history").textContent = `${rows.length} past ${seasonName} seasons from ${rows[0].year} to ${rows[rows.length - 1].year}; ` +
+    $("alt-history").textContent = `${rows.length} past ${seasonMonths(seasonName)} seasons from ${rows[0].year} to ${rows[rows.length - 1].year}; ` +
       `the most flood days was ${most.flood_days} in ${most.season}. The straight-line trend ${perDecade >= 0 ? "rises" : "falls"} ` +
       `by ${Math.abs(perDecade).toFixed(1)} days per decade. Seasons by ENSO: ${counts.la_nina} La Niña, ` +
       `${counts.neutral} neutral, ${counts.el_nino} El Niño (±0.5 °C on the index).`;

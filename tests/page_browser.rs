@@ -832,6 +832,12 @@ fn check_freshness(session: &Session, service: &Service) {
             )
             .expect("screenshot");
         }
+        // The chooser gives the record's last day as the same local day as the outlook.
+        let facts = session.script(
+            "return document.getElementById('gauge-facts').textContent",
+            json!([]),
+        );
+        assert!(facts.as_str().unwrap().contains("to 2026-11-30"), "{facts}");
         // The issue date and the record's last day sit next to the headline.
         let fresh = shown["fresh"].as_str().unwrap();
         assert!(
