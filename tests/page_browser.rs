@@ -1,8 +1,14 @@
 //! The planner's web page in a real headless Chromium, driven over the W3C WebDriver
 //! protocol: the real service runs in-process on a loopback port with the demo coastline.
-//! Checks: a gauge is chosen by click and by keyboard, the numbers on the page equal the
-//! API's, every chart is drawn, the cautions are visible, nothing is fetched from another
-//! host, the downloads carry the API's numbers, and the console stays free of errors.
+//! Checks: a gauge is chosen by click and by keyboard; each gauge shows exactly one plan-on
+//! number, the API's `plan_on`, and no competing "expect about" number; score abbreviations
+//! appear only inside the "How this was checked" disclosure; every driver name is explained
+//! at its first use; a clock set past the season shows the past-season notice and the demo's
+//! date does not; at 390 x 844 and 1,300 x 900 the headline is on the first screen, nothing
+//! is wider than the viewport, charts keep their axes and count in whole days, and chooser
+//! labels do not overlap; every chart is drawn, the cautions are visible, nothing is fetched
+//! from another host, the downloads carry the API's numbers, and the console stays free of
+//! errors.
 //!
 //! Needs `chromium` and `chromedriver` (Debian: `apt-get install chromium chromium-driver`);
 //! `CHROMIUM` and `CHROMEDRIVER` override the paths. Without them the test fails when `CI`
