@@ -543,6 +543,7 @@
     return "neutral";
   }
   const DRIVER_SHORT = { enso: "ENSO", mjo: "MJO", wind: "wind", sea_level: "sea level", tide: "tide" };
+  const DRIVER_TINY = { sea_level: "sea" };
   const ENSO_WORDS = { la_nina: "La Niña", neutral: "neutral", el_nino: "El Niño", unknown: "not known" };
 
   function linearTrend(xs, ys) {
@@ -654,7 +655,7 @@
     table($("table-drivers"), ["driver", "next season's value", "rate ratio", "95% interval", "days more (+) or fewer (−)"],
       list.map((d, i) => [`${DRIVER_LABEL[d.name] || d.name} (${d.name})`, valueWords(d), d.rate_ratio.toFixed(2),
         `${d.rate_ratio_ci[0].toFixed(2)}–${d.rate_ratio_ci[1].toFixed(2)}`, changes[i].delta.toFixed(1)]));
-    const named = changes.map(({ d, delta }) => ({ name: DRIVER_SHORT[d.name] || d.name, delta }));
+    const named = changes.map(({ d, delta }) => ({ name: DRIVER_SHORT[d.name] || d.name, short: DRIVER_TINY[d.name], delta }));
     replaceChart("drivers", (box2) => TideCharts.drivers(box2, named));
   }
 

@@ -109,16 +109,23 @@
     return new uPlot(opts, [x, diag, obs], el);
   }
 
-  /** Each driver's push on the count in flood days (more above zero, fewer below), as bars. */
+  /**
+   * Each driver's push on the count in flood days (more above zero, fewer below), as bars.
+   * `list` holds `{ name, short, delta }`; the short names are used where a name would not fit.
+   */
   function drivers(el, list) {
     const x = list.map((_, i) => i);
+    const labels = (u) => {
+      const slot = (u.width - 60) / Math.max(1, list.length);
+      return list.map((d) => (slot < 9 * d.name.length ? d.short || d.name : d.name));
+    };
     const lo = Math.min(-1, ...list.map((d) => Math.floor(d.delta)));
     const hi = Math.max(1, ...list.map((d) => Math.ceil(d.delta)));
     const opts = Object.assign(size(el), {
       scales: { x: { time: false, range: [-0.6, list.length - 0.4] }, y: { range: [lo, hi] } },
       axes: [
-        axis({ splits: () => x, values: () => list.map((d) => d.name), grid: { show: false } }),
-        axis({ label: "flood days more (+) or fewer (−)", incrs: WHOLE, values: (u, v) => v.map((t) => (t > 0 ? `+${t}` : String(t))) }),
+        axis({ splits: () => x, values: (u) => labels(u), grid: { show: false } }),
+        axis({ label: "flood days ±", incrs: WHOLE, values: (u, v) => v.map((t) => (t > 0 ? `+${t}` : String(t))) }),
       ],
       series: [
         { label: "driver", value: (u, v) => (v == null ? "" : list[v] ? list[v].name : "") },
