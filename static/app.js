@@ -581,7 +581,7 @@
       `by ${Math.abs(perDecade).toFixed(1)} days per decade. Seasons by ENSO: ${counts.la_nina} La Niña, ` +
       `${counts.neutral} neutral, ${counts.el_nino} El Niño (±0.5 °C on the index).`;
     const hc = hindcast ? new Map(hindcast.cases.map((c) => [c.season, c])) : new Map();
-    table($("table-history"), ["season", "flood days", "observed days", "ENSO", "outlook range (hindcast)"],
+    table($("table-history"), ["season", "flood days", "observed days", "ENSO", "range the count model gave, unseen (8 in 10)"],
       rows.map((r) => {
         const c = hc.get(r.season);
         return [r.season, r.flood_days, r.observed_days, ENSO_WORDS[r.enso], c ? `${c.p10}–${c.p90}` : "—"];

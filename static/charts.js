@@ -72,7 +72,7 @@
     const data = [x, rows.map((r) => r.flood_days), trend, cat("la_nina"), cat("neutral"), cat("el_nino")];
     const bands = [];
     if (band) {
-      series.push({ label: "outlook range (hindcast, 10–90%)", stroke: "rgba(14,107,102,0.45)", width: 1, points: { show: false } });
+      series.push({ label: "range the count model gave, unseen (8 in 10)", stroke: "rgba(14,107,102,0.45)", width: 1, points: { show: false } });
       series.push({ label: "", stroke: "rgba(14,107,102,0.45)", width: 1, points: { show: false } });
       data.push(band.hi, band.lo);
       bands.push({ series: [series.length - 2, series.length - 1], fill: "rgba(14,107,102,0.14)" });

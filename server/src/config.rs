@@ -339,6 +339,11 @@ mod tests {
                 .validate()
                 .unwrap();
         assert_eq!(fixed.today, chrono::NaiveDate::from_ymd_opt(2026, 12, 1));
+        let file = RawServeConfig::from_toml(Path::new("c.toml"), "today = \"2027-03-01\"\n")
+            .unwrap()
+            .validate()
+            .unwrap();
+        assert_eq!(file.today, chrono::NaiveDate::from_ymd_opt(2027, 3, 1));
     }
 
     #[test]
