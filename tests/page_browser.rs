@@ -783,17 +783,21 @@ fn check_layout(session: &Session, width: u32, height: u32, name: &str) {
 /// Sizes the window so its viewport (not the outer window, which holds the browser's own
 /// bars even when headless) is `width` x `height`.
 fn set_viewport(session: &Session, width: u32, height: u32) {
-    session.window_size(width, height);
-    let inner = session.script("return [window.innerWidth, window.innerHeight]", json!([]));
-    let (w, h) = (inner[0].as_u64().unwrap(), inner[1].as_u64().unwrap());
-    let outer = |want: u32, got: u64| (2 * u64::from(want)).saturating_sub(got) as u32;
-    session.window_size(outer(width, w), outer(height, h));
-    let inner = session.script("return [window.innerWidth, window.innerHeight]", json!([]));
-    assert_eq!(
-        inner,
-        json!([width, height]),
-        "the viewport could not be sized"
-    );
+    let (mut outer_w, mut outer_h) = (i64::from(width), i64::from(height));
+    let mut inner = json!(null);
+    // The window manager applies a size a moment later; correct by the measured difference.
+    for _ in 0..10 {
+        session.window_size(outer_w as u32, outer_h as u32);
+        std::thread::sleep(Duration::from_millis(150));
+        inner = session.script("return [window.innerWidth, window.innerHeight]", json!([]));
+        let (w, h) = (inner[0].as_i64().unwrap(), inner[1].as_i64().unwrap());
+        if (w, h) == (i64::from(width), i64::from(height)) {
+            return;
+        }
+        outer_w += i64::from(width) - w;
+        outer_h += i64::from(height) - h;
+    }
+    panic!("the viewport could not be sized to {width} x {height}: {inner}");
 }
 
 /// With the service's clock far past the demo season the page says the outlook is for a
