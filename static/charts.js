@@ -13,8 +13,12 @@
   const NEAR = "#6b675c";
   const FONT = "12px system-ui, sans-serif";
 
+  /** Whole-number steps for axes that count days or years: never a tick at 2.5 days. */
+  const WHOLE = [1, 2, 5, 10, 20, 25, 50, 100, 200, 500, 1000];
+
+  /** The chart's size: exactly its box's width, so every axis stays inside it. */
   function size(el) {
-    const width = Math.max(260, Math.floor(el.clientWidth || 320));
+    const width = Math.max(200, Math.floor(el.clientWidth || 320));
     return { width, height: Math.round(Math.min(320, Math.max(220, width * 0.58))), legend: { live: false } };
   }
 
@@ -38,7 +42,7 @@
     const opts = Object.assign(size(el), {
       scales: { x: { time: false }, pmf: { range: (u, lo, hi) => [0, Math.max(0.05, hi * 1.15)] }, cum: { range: [0, 1] } },
       axes: [
-        axis({ label: "flood days in the season" }),
+        axis({ label: "flood days in the season", incrs: WHOLE, values: (u, v) => v.map(String) }),
         axis({ scale: "pmf", label: "exactly", values: (u, v) => v.map(pct) }),
         axis({ scale: "cum", side: 1, grid: { show: false }, label: "this many or more", values: (u, v) => v.map(pct) }),
       ],
@@ -68,15 +72,15 @@
     const data = [x, rows.map((r) => r.flood_days), trend, cat("la_nina"), cat("neutral"), cat("el_nino")];
     const bands = [];
     if (band) {
-      series.push({ label: "outlook range (hindcast, 10–90%)", stroke: "rgba(14,107,102,0.45)", width: 1, points: { show: false } });
+      series.push({ label: "range the count model gave, unseen (8 in 10)", stroke: "rgba(14,107,102,0.45)", width: 1, points: { show: false } });
       series.push({ label: "", stroke: "rgba(14,107,102,0.45)", width: 1, points: { show: false } });
       data.push(band.hi, band.lo);
       bands.push({ series: [series.length - 2, series.length - 1], fill: "rgba(14,107,102,0.14)" });
     }
     const opts = Object.assign(size(el), {
       scales: { x: { time: false }, y: { range: (u, lo, hi) => [0, Math.max(4, hi * 1.1)] } },
-      axes: [axis({ label: "season (year it starts)", values: (u, v) => v.map((t) => (Number.isInteger(t) ? String(t) : "")) }),
-        axis({ label: "flood days" })],
+      axes: [axis({ label: "season (year it starts)", incrs: WHOLE, values: (u, v) => v.map(String) }),
+        axis({ label: "flood days", incrs: WHOLE, values: (u, v) => v.map(String) })],
       series, bands,
     });
     const u = new uPlot(opts, data, el);
@@ -105,45 +109,48 @@
     return new uPlot(opts, [x, diag, obs], el);
   }
 
-  /** Each driver's rate ratio with its interval; 1 means no effect. */
+  /**
+   * Each driver's push on the count in flood days (more above zero, fewer below), as bars.
+   * `list` holds `{ name, short, delta }`; the short names are used where a name would not fit.
+   */
   function drivers(el, list) {
     const x = list.map((_, i) => i);
-    const lo = Math.min(1, ...list.map((d) => d.rate_ratio_ci[0]));
-    const hi = Math.max(1, ...list.map((d) => d.rate_ratio_ci[1]));
-    const pad = (hi - lo) * 0.12 || 0.1;
+    const labels = (u) => {
+      const slot = (u.width - 60) / Math.max(1, list.length);
+      return list.map((d) => (slot < 9 * d.name.length ? d.short || d.name : d.name));
+    };
+    const lo = Math.min(-1, ...list.map((d) => Math.floor(d.delta)));
+    const hi = Math.max(1, ...list.map((d) => Math.ceil(d.delta)));
     const opts = Object.assign(size(el), {
-      scales: { x: { time: false, range: [-0.6, list.length - 0.4] }, y: { range: [Math.max(0, lo - pad), hi + pad] } },
+      scales: { x: { time: false, range: [-0.6, list.length - 0.4] }, y: { range: [lo, hi] } },
       axes: [
-        axis({ splits: () => x, values: () => list.map((d) => d.name), grid: { show: false } }),
-        axis({ label: "rate ratio (1 = none)", values: (u, v) => v.map((t) => t.toFixed(2)) }),
+        axis({ splits: () => x, values: (u) => labels(u), grid: { show: false } }),
+        axis({ label: "flood days ±", incrs: WHOLE, values: (u, v) => v.map((t) => (t > 0 ? `+${t}` : String(t))) }),
       ],
       series: [
         { label: "driver", value: (u, v) => (v == null ? "" : list[v] ? list[v].name : "") },
-        { label: "rate ratio", stroke: HARBOUR, paths: () => null, points: { show: true, size: 12, fill: HARBOUR },
-          value: (u, v) => (v == null ? "" : v.toFixed(2)) },
+        { label: "days more or fewer", stroke: HARBOUR, paths: () => null, points: { show: false },
+          value: (u, v) => (v == null ? "" : v.toFixed(1)) },
       ],
       hooks: {
         draw: [(u) => {
           const ctx = u.ctx;
           ctx.save();
-          const one = u.valToPos(1, "y", true);
-          ctx.strokeStyle = BRICK; ctx.lineWidth = 1.5 * devicePixelRatio; ctx.setLineDash([6, 4]);
-          ctx.beginPath(); ctx.moveTo(u.bbox.left, one); ctx.lineTo(u.bbox.left + u.bbox.width, one); ctx.stroke();
-          ctx.setLineDash([]); ctx.strokeStyle = HARBOUR; ctx.lineWidth = 3 * devicePixelRatio;
+          const zero = u.valToPos(0, "y", true);
+          const half = Math.max(6, (u.bbox.width / Math.max(1, list.length)) * 0.28);
           list.forEach((d, i) => {
             const cx = u.valToPos(i, "x", true);
-            const y0 = u.valToPos(d.rate_ratio_ci[0], "y", true);
-            const y1 = u.valToPos(d.rate_ratio_ci[1], "y", true);
-            const cap = 7 * devicePixelRatio;
-            ctx.beginPath(); ctx.moveTo(cx, y0); ctx.lineTo(cx, y1);
-            ctx.moveTo(cx - cap, y0); ctx.lineTo(cx + cap, y0); ctx.moveTo(cx - cap, y1); ctx.lineTo(cx + cap, y1);
-            ctx.stroke();
+            const top = u.valToPos(d.delta, "y", true);
+            ctx.fillStyle = d.delta >= 0 ? BRICK : BELOW;
+            ctx.fillRect(cx - half, Math.min(zero, top), 2 * half, Math.max(1.5 * devicePixelRatio, Math.abs(top - zero)));
           });
+          ctx.strokeStyle = INK; ctx.lineWidth = 1.5 * devicePixelRatio;
+          ctx.beginPath(); ctx.moveTo(u.bbox.left, zero); ctx.lineTo(u.bbox.left + u.bbox.width, zero); ctx.stroke();
           ctx.restore();
         }],
       },
     });
-    return new uPlot(opts, [x, list.map((d) => d.rate_ratio)], el);
+    return new uPlot(opts, [x, list.map((d) => d.delta)], el);
   }
 
   /** A PNG of a chart with a white background, its title and its legend labels. */

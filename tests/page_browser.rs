@@ -1,8 +1,14 @@
 //! The planner's web page in a real headless Chromium, driven over the W3C WebDriver
 //! protocol: the real service runs in-process on a loopback port with the demo coastline.
-//! Checks: a gauge is chosen by click and by keyboard, the numbers on the page equal the
-//! API's, every chart is drawn, the cautions are visible, nothing is fetched from another
-//! host, the downloads carry the API's numbers, and the console stays free of errors.
+//! Checks: a gauge is chosen by click and by keyboard; each gauge shows exactly one plan-on
+//! number, the API's `plan_on`, and no competing "expect about" number; score abbreviations
+//! appear only inside the "How this was checked" disclosure; every driver name is explained
+//! at its first use; a clock set past the season shows the past-season notice and the demo's
+//! date does not; at 390 x 844 and 1,300 x 900 the headline is on the first screen, nothing
+//! is wider than the viewport, charts keep their axes and count in whole days, and chooser
+//! labels do not overlap; every chart is drawn, the cautions are visible, nothing is fetched
+//! from another host, the downloads carry the API's numbers, and the console stays free of
+//! errors.
 //!
 //! Needs `chromium` and `chromedriver` (Debian: `apt-get install chromium chromium-driver`);
 //! `CHROMIUM` and `CHROMEDRIVER` override the paths. Without them the test fails when `CI`
@@ -68,6 +74,8 @@ fn free_port() -> u16 {
 
 struct Service {
     addr: SocketAddr,
+    /// The service's state, to set its clock.
+    state: Arc<AppState>,
     stop: Option<tokio::sync::oneshot::Sender<()>>,
     thread: Option<std::thread::JoinHandle<()>>,
 }
@@ -92,6 +100,11 @@ fn seed_demo(store: &Store) -> usize {
         .unwrap_or_else(|err| panic!("demo data seeds: {err:?}"))
 }
 
+/// The demo's "today": the day after its water-level records end (demo-data/README.md).
+fn demo_today() -> chrono::NaiveDate {
+    chrono::NaiveDate::from_ymd_opt(2026, 12, 1).expect("a date")
+}
+
 /// The real service over a temp SQLite store seeded with the demo coastline.
 fn start_service() -> Service {
     let dir = fresh_dir("store");
@@ -100,6 +113,9 @@ fn start_service() -> Service {
     assert_eq!(seeded, 4, "the demo coastline has four gauges");
     let app_state = AppState::new(store, None, Duration::from_secs(60));
     state::load_catalog(&app_state).expect("catalog loads");
+    // Today is the demo's first day of 2026-DJF (its records end 2026-11-30): nothing the page
+    // shows depends on the real date.
+    app_state.clock.set(Some(demo_today()));
     let router = tidetally_server::app(Arc::clone(&app_state));
 
     let listener = TcpListener::bind("127.0.0.1:0").expect("bind loopback");
@@ -123,6 +139,7 @@ fn start_service() -> Service {
     });
     Service {
         addr,
+        state: app_state,
         stop: Some(stop),
         thread: Some(thread),
     }
@@ -189,15 +206,14 @@ fn percent(p: f64) -> String {
     }
 }
 
-fn one_decimal(x: f64) -> String {
-    format!("{:.1}", (x * 10.0).round() / 10.0)
-}
-
-/// Every `[data-field]` on the page as field -> (raw, text).
+/// Every `[data-field]` on the page as field -> (raw, text), the text without explanations.
 fn shown_fields(session: &Session) -> serde_json::Map<String, Value> {
     let value = session.script(
         "const out = {}; document.querySelectorAll('#outlook [data-field]').forEach(n => {
-           out[n.dataset.field] = { raw: n.dataset.raw, text: n.textContent }; }); return out;",
+           // The field's own words, without the explanations of terms put in them.
+           const copy = n.cloneNode(true);
+           copy.querySelectorAll('.gloss').forEach(g => g.remove());
+           out[n.dataset.field] = { raw: n.dataset.raw, text: copy.textContent }; }); return out;",
         json!([]),
     );
     value.as_object().cloned().expect("an object of fields")
@@ -221,7 +237,38 @@ fn assert_field(fields: &serde_json::Map<String, Value>, name: &str, raw: f64, t
     assert_eq!(field["text"], json!(text), "{name} wording");
 }
 
-/// The outlook's figures on the page equal the API's outlook for the same gauge.
+/// The plan-on number as the page shows it (static/app.js `planOnText`, rounding as the
+/// service's `about_days` does): "fewer than 1" below one day, else the nearest whole day.
+fn plan_on_text(days: f64) -> String {
+    if days < 1.0 {
+        "fewer than 1".into()
+    } else {
+        format!("{}", days.round())
+    }
+}
+
+/// The page's visible text, in page order, as the reader sees it (closed disclosures,
+/// hidden elements and the explanations of terms left out), and where each explanation
+/// (`.gloss[data-gloss]`) sits in it.
+const VISIBLE_TEXT: &str = "
+  const parts = []; const glossAt = {}; let length = 0;
+  const walker = document.createTreeWalker(document.body, NodeFilter.SHOW_TEXT);
+  for (let n = walker.nextNode(); n; n = walker.nextNode()) {
+    const parent = n.parentElement;
+    if (!parent || parent.closest('script, style') || !parent.checkVisibility()) continue;
+    const gloss = parent.closest('.gloss');
+    if (gloss) {
+      const term = gloss.dataset.gloss;
+      if (!(term in glossAt)) glossAt[term] = { at: length, text: gloss.textContent };
+      continue;
+    }
+    parts.push(n.nodeValue); length += n.nodeValue.length;
+  }
+  return { text: parts.join(''), glossAt };";
+
+/// The outlook's figures on the page equal the API's outlook for the same gauge: exactly one
+/// plan-on number, the API's `plan_on.days` as the page rounds it, with the API's sentence,
+/// and no second "expect about" number.
 fn check_numbers(session: &Session, service: SocketAddr, gauge: &str) -> Value {
     let answer = http(
         service,
@@ -236,23 +283,57 @@ fn check_numbers(session: &Session, service: SocketAddr, gauge: &str) -> Value {
         String::from_utf8_lossy(&answer.body)
     );
     let outlook = answer.json();
-    let fields = shown_fields(session);
     let num = |v: &Value| v.as_f64().expect("a number");
-    assert_field(
-        &fields,
-        "mean",
-        num(&outlook["mean"]),
-        &one_decimal(num(&outlook["mean"])),
+    let plan = session.script(
+        "return [...document.querySelectorAll('[data-plan-on]')].map(n => ({ raw: n.dataset.raw,
+           text: n.textContent, visible: n.checkVisibility() }))",
+        json!([]),
     );
-    for q in ["p10", "p90"] {
-        assert_field(&fields, q, num(&outlook[q]), &outlook[q].to_string());
+    let plan = plan.as_array().expect("a list");
+    assert_eq!(
+        plan.len(),
+        1,
+        "exactly one plan-on number on the page: {plan:?}"
+    );
+    let days = num(&outlook["plan_on"]["days"]);
+    let raw: f64 = plan[0]["raw"].as_str().unwrap().parse().unwrap();
+    assert!(
+        (raw - days).abs() <= 1e-12 * days.max(1.0),
+        "plan-on {raw} vs API {days}"
+    );
+    assert_eq!(
+        plan[0]["text"],
+        json!(plan_on_text(days)),
+        "plan-on wording"
+    );
+    assert_eq!(plan[0]["visible"], json!(true));
+    let fields = shown_fields(session);
+    assert_eq!(
+        fields["plan-sentence"]["text"], outlook["plan_on"]["sentence"],
+        "the plan-on sentence is the API's"
+    );
+    for competing in ["mean", "climatological-mean", "p10", "p90"] {
+        assert!(
+            !fields.contains_key(competing),
+            "a second number: {competing}"
+        );
     }
-    assert_field(
-        &fields,
-        "climatological-mean",
-        num(&outlook["climatological_mean"]),
-        &one_decimal(num(&outlook["climatological_mean"])),
+    let seen = session.script(VISIBLE_TEXT, json!([]));
+    let text = seen["text"].as_str().unwrap();
+    assert!(
+        !text.contains("expect about"),
+        "a competing 'expect about' number"
     );
+    assert!(
+        !text.contains("share of days"),
+        "'share of days' on the page"
+    );
+    // Plurals (common practice in English): never "1 days", "fewer than 1 days".
+    assert!(
+        !text.contains(" 1 days") && !text.contains("(1 days"),
+        "a wrong plural: {text}"
+    );
+
     // The "chance of k or more" is one of the API's exceedance entries, worded as the page does.
     let days: f64 = fields["exceed-days"]["raw"]
         .as_str()
@@ -288,28 +369,128 @@ fn check_numbers(session: &Session, service: SocketAddr, gauge: &str) -> Value {
             &percent(num(&terciles[part])),
         );
     }
+    let verdict = session.script(
+        "const n = document.getElementById('verdict-skill');
+         return { text: n.textContent, inside: Boolean(n.closest('details#how-checked')) }",
+        json!([]),
+    );
     assert_eq!(
-        fields["verdict"]["text"], outlook["skill"]["verdict_text"],
-        "verdict in words"
+        verdict["text"], outlook["skill"]["verdict_text"],
+        "the verdict with its scores"
     );
-    let hindcast = http(
-        service,
-        "GET",
-        &format!("/api/v1/gauges/{gauge}/hindcast"),
-        None,
+    assert_eq!(
+        verdict["inside"],
+        json!(true),
+        "the scores sit in the disclosure"
     );
-    if hindcast.status == 200 {
-        let shown = session.script(
-            "return document.getElementById('verdict-skill').textContent",
-            json!([]),
-        );
-        assert_eq!(
-            shown,
-            hindcast.json()["skill"]["verdict_text"],
-            "hindcast verdict"
+    outlook
+}
+
+/// Score abbreviations (CRPSS, CRPS, RPS, BSS, SEDI, ...) appear only inside the "How this
+/// was checked" disclosure: with every other disclosure open and that one closed, none is
+/// visible; opening it shows the scores, each named in words.
+fn check_scores_only_in_disclosure(session: &Session) {
+    let abbreviations = [
+        "CRPSS", "CRPS", "RPS", "BSS", "SEDI", "RMSE", "MAE", "AUC", "ROC",
+    ];
+    session.script(
+        "document.querySelectorAll('details').forEach(d => { d.open = d.id !== 'how-checked'; })",
+        json!([]),
+    );
+    let seen = session.script(VISIBLE_TEXT, json!([]));
+    let text = seen["text"].as_str().unwrap();
+    for abbr in abbreviations {
+        let found = text
+            .split(|c: char| !c.is_ascii_alphanumeric())
+            .any(|word| word == abbr);
+        assert!(!found, "{abbr} is visible outside the disclosure");
+    }
+    session.script(
+        "document.getElementById('how-checked').open = true",
+        json!([]),
+    );
+    let opened = session.script(VISIBLE_TEXT, json!([]));
+    let text = opened["text"].as_str().unwrap();
+    assert!(text.contains("CRPS"), "the disclosure holds the scores");
+    // Each score is named in words once, with what 0 and 1 mean.
+    let words = session.script(
+        "return [...document.querySelectorAll('#how-checked dt')].map(n => [n.textContent, n.nextElementSibling.textContent])",
+        json!([]),
+    );
+    let words = words.as_array().unwrap();
+    assert!(words.len() >= 3, "scores named: {words:?}");
+    let mut names: Vec<&str> = Vec::new();
+    for pair in words {
+        let (name, meaning) = (pair[0].as_str().unwrap(), pair[1].as_str().unwrap());
+        assert!(!names.contains(&name), "{name} is explained twice");
+        names.push(name);
+        // What a perfect score is (0, or 1 for a skill score) and which way is worse.
+        assert!(
+            meaning.contains("0 ") && meaning.contains("worse"),
+            "{name}: {meaning}"
         );
     }
-    outlook
+    assert!(
+        names.iter().any(|n| n.contains("CRPSS")) && names.iter().any(|n| n.contains("(CRPS)")),
+        "the skill score and the CRPS are named: {names:?}"
+    );
+    session.script(
+        "document.querySelectorAll('details').forEach(d => { d.open = false; })",
+        json!([]),
+    );
+}
+
+/// Every driver name shown on the page is explained in one short sentence right after its
+/// first visible use. The names and the ways they are written are listed here, apart from
+/// the page's own list (static/app.js `GLOSSARY`); the datum also by the gauges' datum codes.
+fn check_glossary(session: &Session, service: SocketAddr) {
+    let gauges = http(service, "GET", "/api/v1/gauges", None).json();
+    let codes: Vec<String> = gauges["gauges"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|g| g["datum"].as_str().map(str::to_owned))
+        .collect();
+    let datum = format!(r"\bdatum\b|\b(?:{})\b", codes.join("|"));
+    let terms = json!([
+        ["enso", r"\bENSO\b|El Ni[ñn]o|La Ni[ñn]a", ""],
+        ["mjo", r"\bMJO\b", ""],
+        ["wind", r"\bwinds?\b", "i"],
+        ["sea_level", r"\bsea[- ]level(?: trend)?\b", "i"],
+        ["tide", r"\b(?:astronomical )?tides?\b", "i"],
+        ["datum", datum, "i"],
+    ]);
+    let report = session.script(
+        &format!(
+            "const seen = (() => {{ {VISIBLE_TEXT} }})();
+             return arguments[0].map(([term, pattern, flags]) => {{
+               const m = new RegExp(pattern, flags).exec(seen.text);
+               const g = seen.glossAt[term];
+               return {{ term, used: m ? m[0] : null, end: m ? m.index + m[0].length : null,
+                        gloss: g ? g.at : null, text: g ? g.text : null }};
+             }});"
+        ),
+        json!([terms]),
+    );
+    let mut used = 0;
+    for entry in report.as_array().unwrap() {
+        let term = &entry["term"];
+        if entry["used"].is_null() {
+            continue;
+        }
+        used += 1;
+        assert_eq!(
+            entry["gloss"], entry["end"],
+            "{term} is not explained at its first use: {entry}"
+        );
+        let text = entry["text"].as_str().unwrap();
+        let inner = text.trim().trim_start_matches('(').trim_end_matches(')');
+        assert!(
+            (20..=160).contains(&inner.len()) && !inner.contains(". "),
+            "{term}: one short sentence: {text:?}"
+        );
+    }
+    assert!(used >= 3, "the page names its drivers: {report}");
 }
 
 /// Each chart has a canvas of non-zero size with non-blank pixels, a text alternative and
@@ -373,7 +554,11 @@ fn check_cautions(session: &Session, outlook: &Value) {
          const r = box.getBoundingClientRect();
          const style = getComputedStyle(box);
          return { w: r.width, h: r.height, visible: style.display !== 'none' && style.visibility === 'visible',
-                  items: [...box.querySelectorAll('li')].map(li => li.textContent) };",
+                  items: [...box.querySelectorAll('li')].map(li => {
+                    // The caution's own words, without the explanations of terms put in it.
+                    const copy = li.cloneNode(true);
+                    copy.querySelectorAll('.gloss').forEach(g => g.remove());
+                    return copy.textContent; }) };",
         json!([]),
     );
     assert!(shown["visible"] == json!(true), "cautions hidden: {shown}");
@@ -471,6 +656,205 @@ fn check_same_origin(session: &Session, service: SocketAddr) {
         page.head
     );
     assert!(String::from_utf8_lossy(&page.body).contains("content=\"default-src 'self'"));
+}
+
+/// The page at `width` x `height`: the headline (plan-on number and sentence) lies within
+/// the first screen, no element is wider than the viewport, each chart fits its box with
+/// every axis inside the canvas, count axes tick at whole numbers, and no two labels of the
+/// gauge chooser overlap. Saves the first screen and the whole page as screenshots.
+fn check_layout(session: &Session, width: u32, height: u32, name: &str) {
+    set_viewport(session, width, height);
+    // The page redraws its charts 150 ms after a resize.
+    std::thread::sleep(Duration::from_millis(900));
+    let report = session.script(
+        "window.scrollTo(0, 0);
+         const vw = document.documentElement.clientWidth, vh = window.innerHeight;
+         const rect = (n) => { const r = n.getBoundingClientRect();
+           return { top: r.top, bottom: r.bottom, left: r.left, right: r.right }; };
+         const name = (n) => `${n.tagName}#${n.id}.${n.getAttribute('class') || ''}`;
+         const wide = [...document.body.querySelectorAll('*')]
+           .filter(n => n.checkVisibility() && !n.closest('.skip'))
+           .map(n => ({ n, r: n.getBoundingClientRect() }))
+           .filter(({ r }) => r.width > 0 && (r.right > vw + 0.5 || r.left < -0.5))
+           .map(({ n, r }) => `${name(n)} ${r.left.toFixed(0)}..${r.right.toFixed(0)}`);
+         const charts = tidetallyPage.charts();
+         const whole = { counts: [0], history: [0, 1], drivers: [1] };
+         const chartReport = ['counts', 'history', 'skill', 'drivers'].map(id => {
+           const box = document.getElementById('chart-' + id);
+           const canvas = box.querySelector('canvas');
+           if (!canvas) return { id, drawn: false };
+           const b = rect(box), c = rect(canvas), o = rect(box.querySelector('.u-over'));
+           const u = charts[id];
+           const ticks = (whole[id] || []).flatMap(i => (u.axes[i]._splits || []));
+           return { id, drawn: true, box: b, canvas: c, over: o,
+                    rightAxis: u.axes.some(a => a.side === 1 && a.show !== false),
+                    fractional: ticks.filter(t => !Number.isInteger(t)),
+                    ticks: ticks.length };
+         });
+         const labels = [...document.querySelectorAll('#gauge-plot text')].map(t => ({ text: t.textContent, r: rect(t) }));
+         const overlaps = [];
+         labels.forEach((a, i) => labels.slice(i + 1).forEach(b => {
+           if (a.r.left < b.r.right - 0.5 && b.r.left < a.r.right - 0.5 && a.r.top < b.r.bottom - 0.5 && b.r.top < a.r.bottom - 0.5)
+             overlaps.push(`${a.text} / ${b.text}`);
+         }));
+         return { vw, vh, scroll: document.documentElement.scrollWidth - vw, wide,
+                  plan: rect(document.getElementById('plan')),
+                  sentence: rect(document.getElementById('plan-sentence')),
+                  charts: chartReport, labels: labels.length, overlaps };",
+        json!([]),
+    );
+    let vh = report["vh"].as_f64().unwrap();
+    for part in ["plan", "sentence"] {
+        let r = &report[part];
+        assert!(
+            r["top"].as_f64().unwrap() >= 0.0 && r["bottom"].as_f64().unwrap() <= vh,
+            "{name}: the headline's {part} is not on the first screen ({vh} px high): {r}"
+        );
+    }
+    assert!(
+        report["scroll"].as_f64().unwrap() <= 0.0,
+        "{name}: sideways scrolling: {report}"
+    );
+    assert_eq!(
+        report["wide"],
+        json!([]),
+        "{name}: elements wider than the viewport"
+    );
+    for chart in report["charts"].as_array().unwrap() {
+        let id = &chart["id"];
+        assert_eq!(chart["drawn"], json!(true), "{name}: {id} not drawn");
+        let (b, c, o) = (&chart["box"], &chart["canvas"], &chart["over"]);
+        let f = |v: &Value, k: &str| v[k].as_f64().unwrap();
+        assert!(
+            f(c, "left") >= f(b, "left") - 0.5 && f(c, "right") <= f(b, "right") + 0.5,
+            "{name}: {id} is wider than its box: {chart}"
+        );
+        // Room for the tick labels of the left and bottom axes (and the right one where the
+        // chart has one) inside the canvas: 20 px holds a line of 12 px text.
+        assert!(
+            f(o, "left") - f(c, "left") >= 20.0 && f(c, "bottom") - f(o, "bottom") >= 20.0,
+            "{name}: {id} axes cut off: {chart}"
+        );
+        if chart["rightAxis"] == json!(true) {
+            assert!(
+                f(c, "right") - f(o, "right") >= 20.0,
+                "{name}: {id} right axis cut off: {chart}"
+            );
+        }
+        assert_eq!(
+            chart["fractional"],
+            json!([]),
+            "{name}: {id} count axis ticks between whole days"
+        );
+    }
+    assert!(report["labels"].as_u64().unwrap() >= 4, "{report}");
+    assert_eq!(
+        report["overlaps"],
+        json!([]),
+        "{name}: chooser labels overlap"
+    );
+    let dir = artifacts();
+    std::fs::write(
+        dir.join(format!("page-{name}-first-screen.png")),
+        session.screenshot(),
+    )
+    .expect("screenshot");
+    let full = session.script(
+        "return Math.ceil(document.documentElement.scrollHeight)",
+        json!([]),
+    );
+    set_viewport(
+        session,
+        width,
+        full.as_u64().unwrap_or(3000).min(9000) as u32,
+    );
+    std::thread::sleep(Duration::from_millis(900));
+    let overflow = session.script(
+        "return document.documentElement.scrollWidth - document.documentElement.clientWidth",
+        json!([]),
+    );
+    assert!(
+        overflow.as_i64().unwrap() <= 0,
+        "{name}: sideways scrolling on the whole page: {overflow}"
+    );
+    std::fs::write(dir.join(format!("page-{name}.png")), session.screenshot()).expect("screenshot");
+}
+
+/// Sizes the window so its viewport (not the outer window, which holds the browser's own
+/// bars even when headless) is `width` x `height`.
+fn set_viewport(session: &Session, width: u32, height: u32) {
+    let (mut outer_w, mut outer_h) = (i64::from(width), i64::from(height));
+    let mut inner = json!(null);
+    // The window manager applies a size a moment later; correct by the measured difference.
+    for _ in 0..10 {
+        session.window_size(outer_w as u32, outer_h as u32);
+        std::thread::sleep(Duration::from_millis(150));
+        inner = session.script("return [window.innerWidth, window.innerHeight]", json!([]));
+        let (w, h) = (inner[0].as_i64().unwrap(), inner[1].as_i64().unwrap());
+        if (w, h) == (i64::from(width), i64::from(height)) {
+            return;
+        }
+        outer_w += i64::from(width) - w;
+        outer_h += i64::from(height) - h;
+    }
+    panic!("the viewport could not be sized to {width} x {height}: {inner}");
+}
+
+/// With the service's clock far past the demo season the page says the outlook is for a
+/// past season and needs newer data; with the clock at the demo's date it does not.
+fn check_freshness(session: &Session, service: &Service) {
+    let url = format!("http://{}/#gauge=port-tamsin", service.addr);
+    let notice = "const n = document.getElementById('stale-notice');
+         return { visible: n.checkVisibility(), text: n.textContent,
+                  fresh: document.getElementById('freshness').textContent }";
+    for (today, stale) in [
+        (chrono::NaiveDate::from_ymd_opt(2031, 6, 1).unwrap(), true),
+        // The season is over the day after 2027-02-28 (valid_until).
+        (chrono::NaiveDate::from_ymd_opt(2027, 3, 1).unwrap(), true),
+        (chrono::NaiveDate::from_ymd_opt(2027, 2, 28).unwrap(), false),
+        (demo_today(), false),
+    ] {
+        service.state.clock.set(Some(today));
+        let clock = http(service.addr, "GET", "/api/v1/clock", None);
+        assert_eq!(
+            clock.json()["today"],
+            json!(today.format("%Y-%m-%d").to_string())
+        );
+        assert!(
+            clock.head.contains("cache-control: no-store"),
+            "{}",
+            clock.head
+        );
+        session.goto("about:blank");
+        session.goto(&url);
+        session.wait_for(&ready_for("port-tamsin"), WAIT);
+        let shown = session.script(notice, json!([]));
+        assert_eq!(shown["visible"], json!(stale), "today {today}: {shown}");
+        if stale {
+            let text = shown["text"].as_str().unwrap();
+            assert!(
+                text.contains("past season") && text.contains("newer"),
+                "{text}"
+            );
+            std::fs::write(
+                artifacts().join(format!("page-stale-{today}.png")),
+                session.screenshot(),
+            )
+            .expect("screenshot");
+        }
+        // The chooser gives the record's last day as the same local day as the outlook.
+        let facts = session.script(
+            "return document.getElementById('gauge-facts').textContent",
+            json!([]),
+        );
+        assert!(facts.as_str().unwrap().contains("to 2026-11-30"), "{facts}");
+        // The issue date and the record's last day sit next to the headline.
+        let fresh = shown["fresh"].as_str().unwrap();
+        assert!(
+            fresh.contains("issued") && fresh.contains("2026-11-30"),
+            "{fresh}"
+        );
+    }
 }
 
 fn check_console(session: &Session) {
@@ -595,15 +979,17 @@ fn planner_page_in_headless_chromium() {
     check_cautions(&session, &outlook);
     check_downloads(&session, service.addr, &outlook);
     check_same_origin(&session, service.addr);
+    check_scores_only_in_disclosure(&session);
+    check_glossary(&session, service.addr);
     check_console(&session);
 
+    // Phones first, then a desktop width: the same checks at both.
+    check_layout(&session, 390, 844, "phone");
+    check_charts(&session);
+    check_layout(&session, 1300, 900, "desktop");
+    check_charts(&session);
+
     let dir = artifacts();
-    let height = session.script(
-        "return Math.ceil(document.documentElement.scrollHeight)",
-        json!([]),
-    );
-    session.window_size(1280, height.as_u64().unwrap_or(2400).min(6000) as u32);
-    std::fs::write(dir.join("page-desktop.png"), session.screenshot()).expect("screenshot");
     // Printing: the print style sheet hides the controls and keeps the outlook and cautions.
     let hidden_in_print = session.script(
         "const rules = [...document.styleSheets].flatMap(s => { try { return [...s.cssRules]; } catch (e) { return []; } });
@@ -617,26 +1003,19 @@ fn planner_page_in_headless_chromium() {
         "printed page"
     );
     std::fs::write(dir.join("page-print.pdf"), pdf).expect("PDF");
+    check_console(&session);
 
-    // A phone-width view: one column, still drawn.
-    session.window_size(390, 3000);
-    std::thread::sleep(Duration::from_millis(600));
-    check_charts(&session);
-    let height = session.script(
-        "return Math.ceil(document.documentElement.scrollHeight)",
-        json!([]),
-    );
-    session.window_size(390, height.as_u64().unwrap_or(3000).min(8000) as u32);
-    std::thread::sleep(Duration::from_millis(300));
-    let overflow = session.script(
-        "return document.documentElement.scrollWidth - document.documentElement.clientWidth",
-        json!([]),
-    );
-    assert!(
-        overflow.as_i64().unwrap() <= 0,
-        "sideways scrolling on a phone: {overflow}"
-    );
-    std::fs::write(dir.join("page-phone.png"), session.screenshot()).expect("screenshot");
+    // Each demo gauge: its one plan-on number and its explained words, at phone width.
+    set_viewport(&session, 390, 844);
+    for gauge in ["corrin-quay", "saltlow-sound", "wrenmouth-inlet"] {
+        session.goto("about:blank");
+        session.goto(&format!("http://{}/#gauge={gauge}", service.addr));
+        session.wait_for(&ready_for(gauge), WAIT);
+        check_numbers(&session, service.addr, gauge);
+        check_scores_only_in_disclosure(&session);
+        check_glossary(&session, service.addr);
+    }
+    check_freshness(&session, &service);
     check_console(&session);
     session.quit();
 

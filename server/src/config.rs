@@ -4,7 +4,7 @@
 //! Precedence, highest first: command-line flags, environment variables (`TIDETALLY_ADDR`,
 //! `TIDETALLY_DB`, `TIDETALLY_DATA`, `TIDETALLY_TOKEN`, `TIDETALLY_CORS_ORIGINS`,
 //! `TIDETALLY_LOG_FORMAT`, `TIDETALLY_HEADER_READ_TIMEOUT_SECS`, `TIDETALLY_IDLE_TIMEOUT_SECS`,
-//! `TIDETALLY_MAX_CONNECTIONS`), the config file (`--config FILE`), then the defaults.
+//! `TIDETALLY_MAX_CONNECTIONS`, `TIDETALLY_TODAY`), the config file (`--config FILE`), then the defaults.
 
 use std::net::SocketAddr;
 use std::path::{Path, PathBuf};
@@ -76,6 +76,9 @@ pub enum ConfigError {
         /// The soft limit on open files, where known.
         file_limit: Option<u64>,
     },
+    /// A fixed date that is not `YYYY-MM-DD`.
+    #[error("today: {0}")]
+    BadToday(#[from] crate::clock::BadToday),
 }
 
 /// Settings as given, before validation. Every field is optional; later sources override
@@ -105,6 +108,8 @@ pub struct RawServeConfig {
     pub idle_timeout_secs: Option<u64>,
     /// Most connections open at once.
     pub max_connections: Option<usize>,
+    /// A fixed date, `YYYY-MM-DD`, for the service's clock (default: the real date).
+    pub today: Option<String>,
 }
 
 impl RawServeConfig {
@@ -147,6 +152,7 @@ impl RawServeConfig {
             idle_timeout_secs: get("TIDETALLY_IDLE_TIMEOUT_SECS")
                 .and_then(|v| v.trim().parse().ok()),
             max_connections: get("TIDETALLY_MAX_CONNECTIONS").and_then(|v| v.trim().parse().ok()),
+            today: get("TIDETALLY_TODAY"),
         }
     }
 
@@ -166,6 +172,7 @@ impl RawServeConfig {
                 .or(self.header_read_timeout_secs),
             idle_timeout_secs: over.idle_timeout_secs.or(self.idle_timeout_secs),
             max_connections: over.max_connections.or(self.max_connections),
+            today: over.today.or(self.today),
         }
     }
 
@@ -225,6 +232,11 @@ impl RawServeConfig {
                 file_limit,
             });
         }
+        let today = self
+            .today
+            .as_deref()
+            .map(crate::clock::parse_today)
+            .transpose()?;
         let data_explicit = self.data.is_some();
         Ok(ServeConfig {
             addr,
@@ -241,6 +253,7 @@ impl RawServeConfig {
                 idle_timeout,
                 max_connections,
             },
+            today,
         })
     }
 }
@@ -289,6 +302,8 @@ pub struct ServeConfig {
     pub cache_max_age: Duration,
     /// Header-read and idle timeouts and the cap on open connections.
     pub connections: ConnLimits,
+    /// The fixed date of the service's clock; `None` follows the real date.
+    pub today: Option<chrono::NaiveDate>,
 }
 
 impl ServeConfig {
@@ -315,6 +330,20 @@ mod tests {
         assert_eq!(c.data, PathBuf::from("demo-data/gauges"));
         assert!(c.token.is_none());
         assert!(!c.data_explicit);
+        assert!(
+            c.today.is_none(),
+            "the clock follows the real date by default"
+        );
+        let fixed =
+            RawServeConfig::from_env(|k| (k == "TIDETALLY_TODAY").then(|| "2026-12-01".into()))
+                .validate()
+                .unwrap();
+        assert_eq!(fixed.today, chrono::NaiveDate::from_ymd_opt(2026, 12, 1));
+        let file = RawServeConfig::from_toml(Path::new("c.toml"), "today = \"2027-03-01\"\n")
+            .unwrap()
+            .validate()
+            .unwrap();
+        assert_eq!(file.today, chrono::NaiveDate::from_ymd_opt(2027, 3, 1));
     }
 
     #[test]
@@ -371,6 +400,10 @@ mod tests {
             ..Default::default()
         };
         assert!(matches!(origin.validate(), Err(ConfigError::BadOrigin(_))));
+        let today =
+            RawServeConfig::from_env(|k| (k == "TIDETALLY_TODAY").then(|| "2026-02-30".into()));
+        let err = today.validate().unwrap_err();
+        assert!(err.to_string().contains("2026-02-30"), "{err}");
         let err = RawServeConfig::from_toml(Path::new("c.toml"), "adr = 1").unwrap_err();
         assert!(err.to_string().contains("c.toml"), "{err}");
     }

@@ -10,6 +10,7 @@ pub mod auth;
 pub mod catalog;
 pub mod cautions;
 pub mod cli;
+pub mod clock;
 pub mod config;
 pub mod connections;
 mod cors;

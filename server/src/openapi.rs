@@ -36,6 +36,7 @@ carry an ETag and answer `304` to a matching `If-None-Match`. Writes need an \
         crate::routes::health::healthz,
         crate::routes::health::readyz,
         crate::routes::read::openapi,
+        crate::routes::read::clock,
         crate::routes::read::gauges,
         crate::routes::read::gauges_geojson,
         crate::routes::read::gauge,
@@ -63,7 +64,7 @@ carry an ETag and answer `304` to a matching `If-None-Match`. Writes need an \
         (name = "gauges", description = "Gauges, their season tables and versions."),
         (name = "outlooks", description = "Outlooks of minor flood days and their skill."),
         (name = "uploads", description = "Writes: gauges, water levels, driver series."),
-        (name = "meta", description = "This document."),
+        (name = "meta", description = "This document and the service's date."),
     )
 )]
 pub struct ApiDoc;

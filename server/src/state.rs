@@ -39,6 +39,8 @@ pub struct AppState {
     pub on_demand: Pool,
     /// One queue per gauge: its uploads and refits run one at a time, in arrival order.
     queues: Mutex<BTreeMap<String, Arc<tokio::sync::Mutex<()>>>>,
+    /// What "today" is (real by default; fixed by configuration or a test).
+    pub clock: crate::clock::Clock,
     /// Test hook run by a refit after fitting, before storing and installing (races made
     /// deterministic in tests); `None` in service.
     pub refit_hook: Option<RefitHook>,
@@ -63,6 +65,7 @@ impl AppState {
             refit_permits: Semaphore::new(1),
             on_demand: Pool::new(1, 8),
             queues: Mutex::default(),
+            clock: crate::clock::Clock::real(),
             refit_hook: None,
         }
     }

@@ -144,6 +144,7 @@ fn the_binary_seeds_from_a_data_folder_and_stops_on_sigterm() {
         .arg(dir.join("t.db"))
         .env_remove("TIDETALLY_TOKEN")
         .env_remove("TIDETALLY_ADDR")
+        .env("TIDETALLY_TODAY", "2031-06-01")
         .stdout(Stdio::piped())
         .stderr(Stdio::null())
         .spawn()
@@ -168,6 +169,9 @@ fn the_binary_seeds_from_a_data_folder_and_stops_on_sigterm() {
     let (status, body) = http(addr, "GET", "/api/v1/gauges", None, b"");
     assert_eq!(status, 200);
     assert!(body.contains("\"port-c\""), "{body}");
+    // TIDETALLY_TODAY fixes the service's clock.
+    let (status, body) = http(addr, "GET", "/api/v1/clock", None, b"");
+    assert_eq!((status, body.as_str()), (200, r#"{"today":"2031-06-01"}"#));
     let (status, body) = http(
         addr,
         "PUT",

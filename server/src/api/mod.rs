@@ -4,6 +4,7 @@
 //! Every type here is plain data that serializes to the shapes documented in DEVELOPERS.md
 //! ("HTTP API"); field names are part of the stable interface.
 
+mod clock;
 mod gauge;
 mod outlook;
 mod problem;
@@ -11,6 +12,7 @@ mod skill;
 mod summary;
 mod upload;
 
+pub use clock::Clock;
 pub use gauge::{
     Feature, FeatureCollection, Gauge, GaugeList, GaugeProperties, Point, RecordSpan,
     SeasonHistory, SeasonRow,

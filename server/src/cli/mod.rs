@@ -67,7 +67,8 @@ pub struct ServeArgs {
     #[arg(long)]
     pub addr: Option<String>,
     /// TOML config file (keys: addr, db, data, token, cors_origins, log_format,
-    /// request_timeout_secs, cache_max_age_secs); environment variables and flags override it.
+    /// request_timeout_secs, cache_max_age_secs, today); environment variables and flags
+    /// override it (TIDETALLY_TODAY=YYYY-MM-DD fixes the date the service calls today).
     #[arg(long)]
     pub config: Option<PathBuf>,
 }

@@ -95,6 +95,7 @@ async fn serve(config: ServeConfig) -> anyhow::Result<()> {
     log_data_source(&config, source);
     let store = open_and_seed(&config, source).await?;
     let state = AppState::new(store, config.token.clone(), config.cache_max_age);
+    state.clock.set(config.today);
     let options = HttpOptions {
         request_timeout: config.request_timeout,
         cors_origins: config.cors_origins.clone(),

@@ -78,6 +78,7 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
         .route_layer(from_fn_with_state(Arc::clone(&state), require_token));
     let reads = Router::new()
         .route("/api/v1/openapi.json", get(read::openapi))
+        .route("/api/v1/clock", get(read::clock))
         .route("/api/v1/gauges", get(read::gauges))
         .route("/api/v1/gauges.geojson", get(read::gauges_geojson))
         .route("/api/v1/gauges/{id}", get(read::gauge))

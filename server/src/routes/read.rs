@@ -80,6 +80,29 @@ pub async fn openapi() -> Response {
 
 #[utoipa::path(
     get,
+    path = "/api/v1/clock",
+    operation_id = "getClock",
+    tag = "meta",
+    summary = "What today is for this service",
+    description = "The service's date: the real UTC date, or the date set with \
+`TIDETALLY_TODAY=YYYY-MM-DD`. The page judges whether an outlook is for a past season by it. \
+Never cached (`Cache-Control: no-store`); outlook bodies carry no date that depends on today.",
+    responses(
+        (status = 200, description = "Today", content_type = "application/json", body = crate::api::Clock)
+    )
+)]
+/// `GET /api/v1/clock`.
+pub async fn clock(State(state): State<Arc<AppState>>) -> Response {
+    let today = state.clock.today().format("%Y-%m-%d").to_string();
+    (
+        [(header::CACHE_CONTROL, "no-store")],
+        Json(api::Clock { today }),
+    )
+        .into_response()
+}
+
+#[utoipa::path(
+    get,
     path = "/api/v1/gauges",
     operation_id = "listGauges",
     tag = "gauges",
