@@ -4,12 +4,14 @@
 //! Every type here is plain data that serializes to the shapes documented in DEVELOPERS.md
 //! ("HTTP API"); field names are part of the stable interface.
 
+mod calendar;
 mod gauge;
 mod outlook;
 mod problem;
 mod skill;
 mod upload;
 
+pub use calendar::{CalendarDay, CalendarWeek, SeasonCalendar, WatchRule};
 pub use gauge::{
     Feature, FeatureCollection, Gauge, GaugeList, GaugeProperties, Point, RecordSpan,
     SeasonHistory, SeasonRow,

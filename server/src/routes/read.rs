@@ -25,7 +25,7 @@ const MAX_ISSUED: u32 = 500;
 
 /// A gauge as served; before the startup load has finished, a gauge not loaded yet is "not
 /// ready", not "not found" (each gauge is served as soon as it is loaded).
-fn gauge_entry(state: &AppState, id: &str) -> Result<Arc<GaugeEntry>, AppError> {
+pub(crate) fn gauge_entry(state: &AppState, id: &str) -> Result<Arc<GaugeEntry>, AppError> {
     match state.catalog.get(id) {
         Some(entry) => Ok(entry),
         None if !state.catalog.is_loaded() => Err(AppError::NotReady),
@@ -42,14 +42,14 @@ fn require_loaded(state: &AppState) -> Result<(), AppError> {
     }
 }
 
-fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
+pub(crate) fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
     query
         .map(|Query(q)| q)
         .map_err(|err| AppError::BadRequest(format!("bad query string: {}", err.body_text())))
 }
 
 /// A prepared JSON body with its ETag.
-fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
+pub(crate) fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
     let mut response = p.body.clone().into_response();
     let headers = response.headers_mut();
     headers.insert(header::CONTENT_TYPE, HeaderValue::from_static(content_type));
@@ -169,19 +169,7 @@ pub async fn seasons(
 ) -> Result<Response, AppError> {
     let query = query_of(query)?;
     let entry = gauge_entry(&state, &id)?;
-    let wants_csv = match query.format.as_deref() {
-        Some("csv") => true,
-        Some("json") => false,
-        Some(other) => {
-            return Err(AppError::BadRequest(format!(
-                "format {other:?} must be json or csv"
-            )));
-        }
-        None => headers
-            .get(header::ACCEPT)
-            .and_then(|v| v.to_str().ok())
-            .is_some_and(|accept| accept.contains("text/csv")),
-    };
+    let wants_csv = wants_csv(query.format.as_deref(), &headers)?;
     let history = entry
         .history
         .as_ref()
@@ -196,6 +184,21 @@ pub async fn seasons(
         .headers_mut()
         .insert(header::VARY, HeaderValue::from_static("accept"));
     Ok(response)
+}
+
+/// Whether a table endpoint answers CSV: `?format=csv|json`, else `Accept: text/csv`.
+pub(crate) fn wants_csv(format: Option<&str>, headers: &HeaderMap) -> Result<bool, AppError> {
+    match format {
+        Some("csv") => Ok(true),
+        Some("json") => Ok(false),
+        Some(other) => Err(AppError::BadRequest(format!(
+            "format {other:?} must be json or csv"
+        ))),
+        None => Ok(headers
+            .get(header::ACCEPT)
+            .and_then(|v| v.to_str().ok())
+            .is_some_and(|accept| accept.contains("text/csv"))),
+    }
 }
 
 /// The season table as CSV: fixed columns, then one column per predictor sorted by name.
@@ -270,13 +273,34 @@ pub async fn outlook(
     query: Result<Query<OutlookQuery>, QueryRejection>,
 ) -> Result<Response, AppError> {
     let query = query_of(query)?;
-    let entry = gauge_entry(&state, &id)?;
+    let served = served_outlook(&state, &id, query.season.as_deref()).await?;
+    match &query.k {
+        None => Ok(prepared(&served, "application/json")),
+        Some(text) => {
+            let days = query::parse_k_list(text, served.value.season_days)
+                .map_err(AppError::BadRequest)?;
+            let mut outlook = served.value.clone();
+            outlook.exceedance = api::exceedance_from_pmf(&outlook.pmf, &days);
+            Ok(Json(outlook).into_response())
+        }
+    }
+}
+
+/// The gauge's outlook of `season` as served, or without a season its default (the earliest
+/// season its fit issued): issued by the fit, kept from an earlier on-demand run, or computed
+/// now off the runtime. The gauge and season errors are those of the outlook endpoint.
+pub(crate) async fn served_outlook(
+    state: &Arc<AppState>,
+    id: &str,
+    season: Option<&str>,
+) -> Result<Arc<SerializedBody<api::Outlook>>, AppError> {
+    let entry = gauge_entry(state, id)?;
     let model = entry
         .model
         .as_ref()
         .map_err(|e| AppError::Pipeline(e.clone()))?;
     // The season is parsed once; an outlook not issued by the fit is computed for it.
-    let (label, target) = match &query.season {
+    let (label, target) = match season {
         Some(text) => {
             let target =
                 query::parse_season(text, &entry.meta.seasons).map_err(AppError::BadRequest)?;
@@ -288,34 +312,20 @@ pub async fn outlook(
             None,
         ),
     };
-    let on_demand;
-    let served = match (model.outlooks.get(&label), target) {
-        (Some(served), _) => served,
-        (None, target) => {
-            on_demand = match model.cached(&label) {
-                Some(cached) => cached,
-                None => {
-                    // Without `?season=` the label is one the fit served.
-                    let target = target.ok_or_else(|| {
-                        AppError::NotFound(format!("gauge {id:?} serves no outlook for {label}"))
-                    })?;
-                    outlook_on_demand(&state, &entry, Arc::clone(model), target).await?
-                }
-            }
-            .map_err(AppError::Pipeline)?;
-            &*on_demand
-        }
-    };
-    match &query.k {
-        None => Ok(prepared(served, "application/json")),
-        Some(text) => {
-            let days = query::parse_k_list(text, served.value.season_days)
-                .map_err(AppError::BadRequest)?;
-            let mut outlook = served.value.clone();
-            outlook.exceedance = api::exceedance_from_pmf(&outlook.pmf, &days);
-            Ok(Json(outlook).into_response())
+    if let Some(served) = model.outlooks.get(&label) {
+        return Ok(Arc::clone(served));
+    }
+    match model.cached(&label) {
+        Some(cached) => cached,
+        None => {
+            // Without `?season=` the label is one the fit served.
+            let target = target.ok_or_else(|| {
+                AppError::NotFound(format!("gauge {id:?} serves no outlook for {label}"))
+            })?;
+            outlook_on_demand(state, &entry, Arc::clone(model), target).await?
         }
     }
+    .map_err(AppError::Pipeline)
 }
 
 /// Whether the record can support an outlook of `target`: a past season with observed days,
