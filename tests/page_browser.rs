@@ -94,7 +94,10 @@ fn seed_demo(store: &Store) -> usize {
 
 /// The real service over a temp SQLite store seeded with the demo coastline.
 fn start_service() -> Service {
-    let dir = fresh_dir("store");
+    // One store per service: the tests of this file run in parallel in one process.
+    static SERVICES: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let n = SERVICES.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    let dir = fresh_dir(&format!("store-{n}"));
     let store = Store::open(&dir.join("store.db")).expect("store opens");
     let seeded = seed_demo(&store);
     assert_eq!(seeded, 4, "the demo coastline has four gauges");
