@@ -728,6 +728,7 @@
     state.outlook = outlook;
     setStatus("", false);
     renderSummary(gauge, outlook);
+    document.dispatchEvent(new CustomEvent('tidetally:outlook', { detail: outlook }));
     $("charts").hidden = false;
     const words = seasonWords(outlook.season);
     renderCounts(outlook);

@@ -107,7 +107,10 @@ fn demo_today() -> chrono::NaiveDate {
 
 /// The real service over a temp SQLite store seeded with the demo coastline.
 fn start_service() -> Service {
-    let dir = fresh_dir("store");
+    // One store per service: the tests of this file run in parallel in one process.
+    static SERVICES: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let n = SERVICES.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    let dir = fresh_dir(&format!("store-{n}"));
     let store = Store::open(&dir.join("store.db")).expect("store opens");
     let seeded = seed_demo(&store);
     assert_eq!(seeded, 4, "the demo coastline has four gauges");
@@ -1020,4 +1023,143 @@ fn planner_page_in_headless_chromium() {
     session.quit();
 
     eprintln!("screenshots in {}", dir.display());
+}
+
+// ---- the season calendar (static/calendar.js) ----
+
+/// The season calendar on a phone-width page: shown for the chosen gauge, its days to watch
+/// marked by a sign (not colour alone) and equal in number to the API's `watch_days`, its
+/// week table one row per API week, its downloads the API's CSV and `.ics`, and nothing
+/// wider than a 390 px viewport.
+#[test]
+fn season_calendar_in_headless_chromium() {
+    let chromium = find_program(
+        "CHROMIUM",
+        &["chromium", "chromium-browser", "google-chrome"],
+    );
+    let driver = find_program("CHROMEDRIVER", &["chromedriver"]);
+    let (Some(chromium), Some(driver)) = (chromium, driver) else {
+        assert!(
+            std::env::var_os("CI").is_none(),
+            "CI is set but chromium or chromedriver is missing (apt-get install chromium chromium-driver)"
+        );
+        eprintln!(
+            "SKIPPED season_calendar_in_headless_chromium: chromium and chromedriver not found \
+             (apt-get install chromium chromium-driver, or set CHROMIUM and CHROMEDRIVER)"
+        );
+        return;
+    };
+    let service = start_service();
+    let driver = start_driver(&driver);
+    let profile = fresh_dir("calendar-profile");
+    let mut args: Vec<String> = CHROMIUM_FLAGS.iter().map(|s| s.to_string()).collect();
+    args.push(format!("--user-data-dir={}", profile.display()));
+    let session = Session::start(
+        driver.addr,
+        json!({
+            "browserName": "chrome",
+            "goog:chromeOptions": { "binary": chromium.to_string_lossy(), "args": args },
+            "goog:loggingPrefs": { "browser": "ALL" },
+        }),
+    );
+    session.window_size(390, 844);
+    session.goto(&format!("http://{}/#gauge=port-tamsin", service.addr));
+    session.wait_for(&ready_for("port-tamsin"), WAIT);
+    session.wait_for(
+        "const s = document.getElementById('season-calendar');
+         return s.dataset.state === 'ready' && s.dataset.gauge === 'port-tamsin' && !s.hidden",
+        WAIT,
+    );
+    let calendar = http(
+        service.addr,
+        "GET",
+        "/api/v1/gauges/port-tamsin/calendar",
+        None,
+    )
+    .json();
+    let weeks = calendar["weeks"].as_array().unwrap();
+    let shown = session.script(
+        "const s = document.getElementById('season-calendar');
+         return {
+           marks: s.querySelectorAll('.cal-month .cal-watch-day .cal-mark').length,
+           watchDays: [...s.querySelectorAll('.cal-month .cal-watch-day')].map(c => c.dataset.date),
+           days: s.querySelectorAll('.cal-month .cal-day').length,
+           watchWords: s.querySelectorAll('.cal-month .cal-watch-week .cal-watch-word').length,
+           months: s.querySelectorAll('.cal-month').length,
+           rows: s.querySelectorAll('.cal-weeks tbody tr').length,
+           csv: document.getElementById('dl-calendar-csv').getAttribute('href'),
+           ics: document.getElementById('dl-calendar-ics').getAttribute('href'),
+           explain: document.getElementById('calendar-explain').textContent,
+           right: Math.max(...[...s.querySelectorAll('*')].map(n => n.getBoundingClientRect().right)),
+           width: document.documentElement.clientWidth,
+         };",
+        json!([]),
+    );
+    let watch: Vec<&str> = weeks
+        .iter()
+        .flat_map(|w| w["days"].as_array().unwrap())
+        .filter(|d| d["watch"] == true)
+        .map(|d| d["date"].as_str().unwrap())
+        .collect();
+    let days: usize = weeks
+        .iter()
+        .map(|w| w["days"].as_array().unwrap().len())
+        .sum();
+    assert!(!watch.is_empty(), "the demo gauge has days to watch");
+    assert_eq!(shown["watchDays"], json!(watch), "{shown}");
+    assert_eq!(
+        shown["marks"],
+        json!(watch.len()),
+        "every day to watch has its sign"
+    );
+    assert_eq!(
+        shown["days"],
+        json!(days),
+        "every season day is in the grid"
+    );
+    // DJF spans December, January and February.
+    assert_eq!(shown["months"], json!(3));
+    assert_eq!(shown["rows"], json!(weeks.len()), "one table row per week");
+    assert!(shown["watchWords"].as_u64().unwrap() >= 1);
+    let explain = shown["explain"].as_str().unwrap();
+    assert!(
+        explain.contains(&format!("{} days", watch.len())),
+        "{explain}"
+    );
+    assert!(explain.contains("not a warning"), "{explain}");
+    // Nothing of the calendar reaches past the phone's width.
+    assert!(
+        shown["right"].as_f64().unwrap() <= shown["width"].as_f64().unwrap() + 0.5,
+        "the calendar overflows a 390 px phone: {shown}"
+    );
+    // The downloads are the API's own files.
+    let csv = http(service.addr, "GET", shown["csv"].as_str().unwrap(), None);
+    assert_eq!(csv.status, 200);
+    assert!(
+        csv.text()
+            .starts_with("date,weekday,predicted_high_m,chance,watch\r\n")
+    );
+    let ics = http(service.addr, "GET", shown["ics"].as_str().unwrap(), None);
+    assert_eq!(ics.status, 200);
+    assert_eq!(ics.text().matches("BEGIN:VEVENT").count(), watch.len());
+
+    session.script(
+        "document.getElementById('season-calendar').scrollIntoView()",
+        json!([]),
+    );
+    std::fs::write(artifacts().join("calendar-phone.png"), session.screenshot())
+        .expect("screenshot");
+    session.window_size(1300, 900);
+    std::thread::sleep(Duration::from_millis(300));
+    session.script(
+        "document.getElementById('season-calendar').scrollIntoView()",
+        json!([]),
+    );
+    std::fs::write(
+        artifacts().join("calendar-desktop.png"),
+        session.screenshot(),
+    )
+    .expect("screenshot");
+    check_console(&session);
+    session.quit();
 }

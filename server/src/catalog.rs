@@ -40,7 +40,7 @@ pub struct ServedModel {
     /// The hindcast, serialized.
     pub hindcast: SerializedBody<api::Hindcast>,
     /// Each outlook with the gauge's default exceedance days, serialized, by season label.
-    pub outlooks: BTreeMap<String, SerializedBody<api::Outlook>>,
+    pub outlooks: BTreeMap<String, Arc<SerializedBody<api::Outlook>>>,
     /// Outlooks of other seasons computed on demand from this fit, by season label.
     on_demand: Mutex<BTreeMap<String, OnDemand>>,
 }
@@ -63,7 +63,12 @@ impl ServedModel {
         let outlooks = results
             .outlooks
             .iter()
-            .map(|(season, outlook)| (season.clone(), SerializedBody::new(outlook.clone())))
+            .map(|(season, outlook)| {
+                (
+                    season.clone(),
+                    Arc::new(SerializedBody::new(outlook.clone())),
+                )
+            })
             .collect();
         Self {
             results,

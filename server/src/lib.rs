@@ -7,6 +7,7 @@
 
 pub mod api;
 pub mod auth;
+pub mod calendar;
 pub mod catalog;
 pub mod cautions;
 pub mod cli;

@@ -43,6 +43,8 @@ carry an ETag and answer `304` to a matching `If-None-Match`. Writes need an \
         crate::routes::read::seasons,
         crate::routes::read::outlook,
         crate::routes::read::hindcast,
+        crate::routes::calendar::calendar,
+        crate::routes::calendar::calendar_ics,
         crate::routes::read::outlooks,
         crate::routes::read::issued,
         crate::routes::read::versions,

@@ -38,6 +38,11 @@ const ASSETS: &[Asset] = &[
         bytes: include_bytes!("../../static/app.js"),
     },
     Asset {
+        path: "/static/calendar.js",
+        content_type: "text/javascript; charset=utf-8",
+        bytes: include_bytes!("../../static/calendar.js"),
+    },
+    Asset {
         path: "/static/charts.js",
         content_type: "text/javascript; charset=utf-8",
         bytes: include_bytes!("../../static/charts.js"),

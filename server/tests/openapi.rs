@@ -22,6 +22,8 @@ const EXPECTED: &[(&str, &str)] = &[
     ("get", "/api/v1/gauges/{id}/seasons"),
     ("get", "/api/v1/gauges/{id}/outlook"),
     ("get", "/api/v1/gauges/{id}/hindcast"),
+    ("get", "/api/v1/gauges/{id}/calendar"),
+    ("get", "/api/v1/gauges/{id}/calendar.ics"),
     ("get", "/api/v1/outlooks"),
     ("get", "/api/v1/outlooks/issued"),
     ("put", "/api/v1/gauges/{id}"),
@@ -152,6 +154,7 @@ async fn real_responses_have_the_documented_fields() {
         "SeasonHistory",
         "Outlook",
         "Hindcast",
+        "SeasonCalendar",
         "OutlookSet",
         "IssuedOutlookList",
         "UploadReceipt",
@@ -183,8 +186,17 @@ async fn real_responses_have_the_documented_fields() {
     .await
     .json();
     assert_conforms(&doc, "UploadReceipt", &receipt, "PUT series");
+    // One day of calendar, so the season calendar can be read too.
+    let mut results = synthetic_results("a");
+    if let Some(outlook) = results.outlooks.get_mut("2026-DJF") {
+        outlook.days = vec![tidetally_server::api::DayChance {
+            date: "2026-12-01".into(),
+            predicted_high_m: 0.8,
+            chance: 0.3,
+        }];
+    }
     let st = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
+    tokio::task::spawn_blocking(move || state::install_results(&st, "a", results))
         .await
         .unwrap()
         .unwrap();
@@ -200,6 +212,10 @@ async fn real_responses_have_the_documented_fields() {
         ("/api/v1/gauges/a/outlook?season=2026-DJF", "Outlook"),
         ("/api/v1/gauges/a/outlook?season=2026-DJF&k=1,2", "Outlook"),
         ("/api/v1/gauges/a/hindcast", "Hindcast"),
+        (
+            "/api/v1/gauges/a/calendar?season=2026-DJF",
+            "SeasonCalendar",
+        ),
         ("/api/v1/outlooks?season=2026-DJF", "OutlookSet"),
         ("/api/v1/outlooks/issued", "IssuedOutlookList"),
         ("/api/v1/gauges/a/versions", "VersionList"),

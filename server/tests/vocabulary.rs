@@ -121,13 +121,19 @@ async fn every_read_endpoint_speaks_the_shared_vocabulary() {
         "/api/v1/outlooks?season=2026-DJF",
         "/api/v1/gauges/port-tamsin/versions",
         "/api/v1/drivers",
+        "/api/v1/gauges/port-tamsin/calendar",
     ] {
         let answer = get(&app, path).await;
         assert_eq!(answer.status, 200, "{path}");
         check_json(path, &answer.json());
     }
-    let csv = get(&app, "/api/v1/gauges/port-tamsin/seasons?format=csv").await;
-    assert_eq!(csv.status, 200);
-    check_csv_header("seasons csv", &String::from_utf8(csv.body).unwrap());
+    for path in [
+        "/api/v1/gauges/port-tamsin/seasons?format=csv",
+        "/api/v1/gauges/port-tamsin/calendar?format=csv",
+    ] {
+        let csv = get(&app, path).await;
+        assert_eq!(csv.status, 200, "{path}");
+        check_csv_header(path, &String::from_utf8(csv.body).unwrap());
+    }
     let _ = std::fs::remove_dir_all(&data);
 }

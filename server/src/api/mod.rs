@@ -4,6 +4,7 @@
 //! Every type here is plain data that serializes to the shapes documented in DEVELOPERS.md
 //! ("HTTP API"); field names are part of the stable interface.
 
+mod calendar;
 mod clock;
 mod gauge;
 mod outlook;
@@ -12,6 +13,7 @@ mod skill;
 mod summary;
 mod upload;
 
+pub use calendar::{CalendarDay, CalendarWeek, SeasonCalendar, WatchRule};
 pub use clock::Clock;
 pub use gauge::{
     Feature, FeatureCollection, Gauge, GaugeList, GaugeProperties, Point, RecordSpan,

@@ -1,5 +1,6 @@
 //! The router: every path, its layers, and the fallback for unknown paths.
 
+pub(crate) mod calendar;
 pub(crate) mod health;
 pub(crate) mod read;
 mod tables;
@@ -85,6 +86,11 @@ pub fn router(state: Arc<AppState>, options: &HttpOptions) -> Router {
         .route("/api/v1/gauges/{id}/seasons", get(read::seasons))
         .route("/api/v1/gauges/{id}/outlook", get(read::outlook))
         .route("/api/v1/gauges/{id}/hindcast", get(read::hindcast))
+        .route("/api/v1/gauges/{id}/calendar", get(calendar::calendar))
+        .route(
+            "/api/v1/gauges/{id}/calendar.ics",
+            get(calendar::calendar_ics),
+        )
         .route("/api/v1/outlooks", get(read::outlooks))
         .route("/api/v1/outlooks/issued", get(read::issued))
         .route("/api/v1/gauges/{id}/versions", get(read::versions))

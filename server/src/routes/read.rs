@@ -27,7 +27,7 @@ const MAX_ISSUED: u32 = 500;
 
 /// A gauge as served; before the startup load has finished, a gauge not loaded yet is "not
 /// ready", not "not found" (each gauge is served as soon as it is loaded).
-fn gauge_entry(state: &AppState, id: &str) -> Result<Arc<GaugeEntry>, AppError> {
+pub(crate) fn gauge_entry(state: &AppState, id: &str) -> Result<Arc<GaugeEntry>, AppError> {
     match state.catalog.get(id) {
         Some(entry) => Ok(entry),
         None if !state.catalog.is_loaded() => Err(AppError::NotReady),
@@ -44,14 +44,14 @@ fn require_loaded(state: &AppState) -> Result<(), AppError> {
     }
 }
 
-fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
+pub(crate) fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
     query
         .map(|Query(q)| q)
         .map_err(|err| AppError::BadRequest(format!("bad query string: {}", err.body_text())))
 }
 
 /// A prepared JSON body with its ETag.
-fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
+pub(crate) fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
     let mut response = p.body.clone().into_response();
     let headers = response.headers_mut();
     headers.insert(header::CONTENT_TYPE, HeaderValue::from_static(content_type));
@@ -219,7 +219,7 @@ pub async fn seasons(
 }
 
 /// What the endpoints with a CSV form offer, JSON first (the default).
-const JSON_OR_CSV: &[Format] = &[Format::Json, Format::Csv];
+pub(crate) const JSON_OR_CSV: &[Format] = &[Format::Json, Format::Csv];
 
 /// A prepared JSON body of an endpoint that also answers CSV.
 fn json_varying<T>(p: &SerializedBody<T>) -> Response {
@@ -269,13 +269,42 @@ pub async fn outlook(
 ) -> Result<Response, AppError> {
     let query = query_of(query)?;
     let format = negotiate(query.format.as_deref(), &headers, JSON_OR_CSV)?;
-    let entry = gauge_entry(&state, &id)?;
+    let served = served_outlook(&state, &id, query.season.as_deref()).await?;
+    let days = match &query.k {
+        Some(text) => Some(
+            query::parse_k_list(text, served.value.season_days).map_err(AppError::BadRequest)?,
+        ),
+        None => None,
+    };
+    match (format, days) {
+        (Format::Csv, _) => Ok(csv_response(
+            tables::outlook_csv(&served.value).map_err(csv_failed)?,
+        )),
+        (Format::Json, None) => Ok(json_varying(&served)),
+        (Format::Json, Some(days)) => {
+            let mut outlook = served.value.clone();
+            outlook.exceedance = api::exceedance_from_pmf(&outlook.pmf, &days);
+            let mut response = Json(outlook).into_response();
+            vary_accept(&mut response);
+            Ok(response)
+        }
+    }
+}
+/// The gauge's outlook of `season` as served, or without a season its default (the earliest
+/// season its fit issued): issued by the fit, kept from an earlier on-demand run, or computed
+/// now off the runtime. The gauge and season errors are those of the outlook endpoint.
+pub(crate) async fn served_outlook(
+    state: &Arc<AppState>,
+    id: &str,
+    season: Option<&str>,
+) -> Result<Arc<SerializedBody<api::Outlook>>, AppError> {
+    let entry = gauge_entry(state, id)?;
     let model = entry
         .model
         .as_ref()
         .map_err(|e| AppError::Pipeline(e.clone()))?;
     // The season is parsed once; an outlook not issued by the fit is computed for it.
-    let (label, target) = match &query.season {
+    let (label, target) = match season {
         Some(text) => {
             let target =
                 query::parse_season(text, &entry.meta.seasons).map_err(AppError::BadRequest)?;
@@ -287,43 +316,20 @@ pub async fn outlook(
             None,
         ),
     };
-    let on_demand;
-    let served = match (model.outlooks.get(&label), target) {
-        (Some(served), _) => served,
-        (None, target) => {
-            on_demand = match model.cached(&label) {
-                Some(cached) => cached,
-                None => {
-                    // Without `?season=` the label is one the fit served.
-                    let target = target.ok_or_else(|| {
-                        AppError::NotFound(format!("gauge {id:?} serves no outlook for {label}"))
-                    })?;
-                    outlook_on_demand(&state, &entry, Arc::clone(model), target).await?
-                }
-            }
-            .map_err(AppError::Pipeline)?;
-            &*on_demand
-        }
-    };
-    let days = match &query.k {
-        Some(text) => Some(
-            query::parse_k_list(text, served.value.season_days).map_err(AppError::BadRequest)?,
-        ),
-        None => None,
-    };
-    match (format, days) {
-        (Format::Csv, _) => Ok(csv_response(
-            tables::outlook_csv(&served.value).map_err(csv_failed)?,
-        )),
-        (Format::Json, None) => Ok(json_varying(served)),
-        (Format::Json, Some(days)) => {
-            let mut outlook = served.value.clone();
-            outlook.exceedance = api::exceedance_from_pmf(&outlook.pmf, &days);
-            let mut response = Json(outlook).into_response();
-            vary_accept(&mut response);
-            Ok(response)
+    if let Some(served) = model.outlooks.get(&label) {
+        return Ok(Arc::clone(served));
+    }
+    match model.cached(&label) {
+        Some(cached) => cached,
+        None => {
+            // Without `?season=` the label is one the fit served.
+            let target = target.ok_or_else(|| {
+                AppError::NotFound(format!("gauge {id:?} serves no outlook for {label}"))
+            })?;
+            outlook_on_demand(state, &entry, Arc::clone(model), target).await?
         }
     }
+    .map_err(AppError::Pipeline)
 }
 
 /// Whether the record can support an outlook of `target`: a past season with observed days,
@@ -395,7 +401,7 @@ async fn outlook_on_demand(
 fn default_outlook(entry: &GaugeEntry) -> Result<&SerializedBody<api::Outlook>, String> {
     let model = entry.model.as_ref().map_err(ToString::to_string)?;
     first_served_season(model.outlooks.keys(), entry)
-        .and_then(|label| model.outlooks.get(&label))
+        .and_then(|label| model.outlooks.get(&label).map(|served| &**served))
         .ok_or_else(|| format!("gauge {} serves no outlook", entry.meta.id))
 }
 
