@@ -877,38 +877,60 @@ fn ready_for(gauge: &str) -> String {
     )
 }
 
+/// A headless Chromium session on the demo service, or `None` (with a skip message) when
+/// chromium or chromedriver is missing outside CI; under CI a missing browser fails the test.
+/// Fields drop in order: the session ends before its driver and the service stop.
+struct Browser {
+    session: Session,
+    _driver: Driver,
+    service: Service,
+}
+
+impl Browser {
+    fn open(test: &str, profile: &str) -> Option<Browser> {
+        let chromium = find_program(
+            "CHROMIUM",
+            &["chromium", "chromium-browser", "google-chrome"],
+        );
+        let driver = find_program("CHROMEDRIVER", &["chromedriver"]);
+        let (Some(chromium), Some(driver)) = (chromium, driver) else {
+            assert!(
+                std::env::var_os("CI").is_none(),
+                "CI is set but chromium or chromedriver is missing (apt-get install chromium chromium-driver)"
+            );
+            eprintln!(
+                "SKIPPED {test}: chromium and chromedriver not found \
+                 (apt-get install chromium chromium-driver, or set CHROMIUM and CHROMEDRIVER)"
+            );
+            return None;
+        };
+        let service = start_service();
+        let driver = start_driver(&driver);
+        let profile = fresh_dir(profile);
+        let mut args: Vec<String> = CHROMIUM_FLAGS.iter().map(|s| s.to_string()).collect();
+        args.push(format!("--user-data-dir={}", profile.display()));
+        let session = Session::start(
+            driver.addr,
+            json!({
+                "browserName": "chrome",
+                "goog:chromeOptions": { "binary": chromium.to_string_lossy(), "args": args },
+                "goog:loggingPrefs": { "browser": "ALL" },
+            }),
+        );
+        Some(Browser {
+            session,
+            _driver: driver,
+            service,
+        })
+    }
+}
+
 #[test]
 fn planner_page_in_headless_chromium() {
-    let chromium = find_program(
-        "CHROMIUM",
-        &["chromium", "chromium-browser", "google-chrome"],
-    );
-    let driver = find_program("CHROMEDRIVER", &["chromedriver"]);
-    let (Some(chromium), Some(driver)) = (chromium, driver) else {
-        assert!(
-            std::env::var_os("CI").is_none(),
-            "CI is set but chromium or chromedriver is missing (apt-get install chromium chromium-driver)"
-        );
-        eprintln!(
-            "SKIPPED planner_page_in_headless_chromium: chromium and chromedriver not found \
-             (apt-get install chromium chromium-driver, or set CHROMIUM and CHROMEDRIVER)"
-        );
+    let Some(browser) = Browser::open("planner_page_in_headless_chromium", "profile") else {
         return;
     };
-
-    let service = start_service();
-    let driver = start_driver(&driver);
-    let profile = fresh_dir("profile");
-    let mut args: Vec<String> = CHROMIUM_FLAGS.iter().map(|s| s.to_string()).collect();
-    args.push(format!("--user-data-dir={}", profile.display()));
-    let session = Session::start(
-        driver.addr,
-        json!({
-            "browserName": "chrome",
-            "goog:chromeOptions": { "binary": chromium.to_string_lossy(), "args": args },
-            "goog:loggingPrefs": { "browser": "ALL" },
-        }),
-    );
+    let (service, session) = (&browser.service, &browser.session);
     session.window_size(1280, 2400);
     session.goto(&format!("http://{}/", service.addr));
 
@@ -1033,35 +1055,11 @@ fn planner_page_in_headless_chromium() {
 /// wider than a 390 px viewport.
 #[test]
 fn season_calendar_in_headless_chromium() {
-    let chromium = find_program(
-        "CHROMIUM",
-        &["chromium", "chromium-browser", "google-chrome"],
-    );
-    let driver = find_program("CHROMEDRIVER", &["chromedriver"]);
-    let (Some(chromium), Some(driver)) = (chromium, driver) else {
-        assert!(
-            std::env::var_os("CI").is_none(),
-            "CI is set but chromium or chromedriver is missing (apt-get install chromium chromium-driver)"
-        );
-        eprintln!(
-            "SKIPPED season_calendar_in_headless_chromium: chromium and chromedriver not found \
-             (apt-get install chromium chromium-driver, or set CHROMIUM and CHROMEDRIVER)"
-        );
+    let Some(browser) = Browser::open("season_calendar_in_headless_chromium", "calendar-profile")
+    else {
         return;
     };
-    let service = start_service();
-    let driver = start_driver(&driver);
-    let profile = fresh_dir("calendar-profile");
-    let mut args: Vec<String> = CHROMIUM_FLAGS.iter().map(|s| s.to_string()).collect();
-    args.push(format!("--user-data-dir={}", profile.display()));
-    let session = Session::start(
-        driver.addr,
-        json!({
-            "browserName": "chrome",
-            "goog:chromeOptions": { "binary": chromium.to_string_lossy(), "args": args },
-            "goog:loggingPrefs": { "browser": "ALL" },
-        }),
-    );
+    let (service, session) = (&browser.service, &browser.session);
     session.window_size(390, 844);
     session.goto(&format!("http://{}/#gauge=port-tamsin", service.addr));
     session.wait_for(&ready_for("port-tamsin"), WAIT);

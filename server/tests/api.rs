@@ -249,11 +249,7 @@ async fn outlooks_are_served_from_installed_results() {
     write(&app, "GET", "/api/v1/gauges/a/outlook", "")
         .await
         .assert_problem(422, "pipeline-failed");
-    let st = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
-        .await
-        .unwrap()
-        .unwrap();
+    install_synthetic(&state, "a").await;
 
     let o = get(&app, "/api/v1/gauges/a/outlook?season=2026-DJF").await;
     assert_eq!(o.status, StatusCode::OK);
@@ -346,11 +342,7 @@ async fn a_failed_refit_keeps_the_old_model_serving() {
     let state = state(true);
     let app = app(Arc::clone(&state));
     upload_gauge(&app, "a").await;
-    let st = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
-        .await
-        .unwrap()
-        .unwrap();
+    install_synthetic(&state, "a").await;
     // A few hours of levels cannot be fitted; the refit fails and changes nothing.
     let refit = write(&app, "POST", "/api/v1/gauges/a/refit", "").await;
     assert!(refit.status.is_client_error() || refit.status.is_server_error());
@@ -520,11 +512,7 @@ async fn an_outlook_answers_its_count_table_as_csv_with_its_own_etag() {
     let state = state(true);
     let app = app(Arc::clone(&state));
     upload_gauge(&app, "a").await;
-    let st = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
-        .await
-        .unwrap()
-        .unwrap();
+    install_synthetic(&state, "a").await;
     let json = get(&app, "/api/v1/gauges/a/outlook").await;
     let json_etag = json.header("etag").unwrap().to_owned();
     let outlook = json.json();
@@ -602,11 +590,7 @@ async fn json_or_csv_is_negotiated_by_format_then_accept_and_refused_with_406() 
     let state = state(true);
     let app = app(Arc::clone(&state));
     upload_gauge(&app, "a").await;
-    let st = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
-        .await
-        .unwrap()
-        .unwrap();
+    install_synthetic(&state, "a").await;
     let is_csv = |a: &Answer| {
         assert_eq!(
             a.status,
@@ -673,11 +657,7 @@ async fn the_outlook_set_as_csv_has_one_row_per_gauge_with_its_headline_numbers(
     let app = app(Arc::clone(&state));
     upload_gauge(&app, "b").await;
     upload_gauge(&app, "a").await;
-    let st = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::install_results(&st, "b", synthetic_results("b")))
-        .await
-        .unwrap()
-        .unwrap();
+    install_synthetic(&state, "b").await;
     let set = get(&app, "/api/v1/outlooks").await.json();
     let csv = get(&app, "/api/v1/outlooks?format=csv").await;
     assert_eq!(csv.header("content-type"), Some("text/csv; charset=utf-8"));
@@ -738,11 +718,7 @@ async fn geojson_features_carry_their_next_outlooks_summary_or_null() {
     let app = app(Arc::clone(&state));
     upload_gauge(&app, "a").await;
     upload_gauge(&app, "b").await;
-    let st = Arc::clone(&state);
-    tokio::task::spawn_blocking(move || state::install_results(&st, "a", synthetic_results("a")))
-        .await
-        .unwrap()
-        .unwrap();
+    install_synthetic(&state, "a").await;
     let geo = get(&app, "/api/v1/gauges.geojson").await.json();
     let o = get(&app, "/api/v1/gauges/a/outlook").await.json();
     let a = &geo["features"][0]["properties"];

@@ -5,10 +5,13 @@
 //! same function; `demo_outlooks.rs` checks that its outlooks' rate ratios equal `fit`'s.
 #![allow(clippy::unwrap_used)]
 
+mod support;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
 use serde_json::Value;
+use support::tidetally;
 
 const TOLERANCE: f64 = 1e-8;
 
@@ -16,18 +19,6 @@ fn demo_gauge(id: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("../demo-data/gauges/{id}.toml"))
 }
 
-fn tidetally(args: &[&str]) -> Vec<u8> {
-    let out = Command::new(env!("CARGO_BIN_EXE_tidetally"))
-        .args(args)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "tidetally {args:?}: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    out.stdout
-}
 
 /// The exported table: header and rows as strings.
 fn table(gauge: &Path) -> (Vec<String>, Vec<Vec<String>>) {

@@ -5,11 +5,9 @@
 
 mod support;
 
-use std::process::Command;
-
 use serde_json::Value;
 use support::demo::{demo, demo_folder, seeded_state_with};
-use support::get;
+use support::{get, tidetally};
 use tidetally_server::app;
 use tidetally_server::vocabulary::{FAMILY_NAMES, retired};
 
@@ -69,18 +67,6 @@ fn check_csv_header(what: &str, text: &str) {
     }
 }
 
-fn tidetally(args: &[&str]) -> Vec<u8> {
-    let out = Command::new(env!("CARGO_BIN_EXE_tidetally"))
-        .args(args)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "tidetally {args:?}: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    out.stdout
-}
 
 #[test]
 fn every_command_speaks_the_shared_vocabulary() {

@@ -120,6 +120,30 @@ pub fn synthetic_results(gauge: &str) -> GaugeResults {
 }
 
 /// Uploads a gauge and its levels through the API.
+/// Installs [`synthetic_results`] for gauge `id` (off the runtime, as the service does).
+pub async fn install_synthetic(state: &Arc<AppState>, id: &str) {
+    let st = Arc::clone(state);
+    let id = id.to_owned();
+    tokio::task::spawn_blocking(move || state::install_results(&st, &id, synthetic_results(&id)))
+        .await
+        .expect("install task")
+        .expect("results installed");
+}
+
+/// Runs the `tidetally` binary with `args` and returns its stdout; a failure shows stderr.
+pub fn tidetally(args: &[&str]) -> Vec<u8> {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_tidetally"))
+        .args(args)
+        .output()
+        .expect("the binary runs");
+    assert!(
+        out.status.success(),
+        "tidetally {args:?}: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out.stdout
+}
+
 pub async fn upload_gauge(app: &Router, id: &str) {
     let a = write(app, "PUT", &format!("/api/v1/gauges/{id}"), gauge_toml(id)).await;
     assert_eq!(
