@@ -15,6 +15,7 @@ use tidetally_model::season::Season;
 use crate::api;
 use crate::catalog::{GaugeEntry, OnDemand, SerializedBody, ServedModel};
 use crate::error::AppError;
+use crate::outlook_set::{self, SeasonAsked};
 use crate::pipeline;
 use crate::query;
 use crate::state::{self, AppState};
@@ -48,9 +49,11 @@ fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, AppError> {
         .map_err(|err| AppError::BadRequest(format!("bad query string: {}", err.body_text())))
 }
 
-/// A prepared JSON body with its ETag.
+/// A prepared JSON body with its ETag, and its compressed copies for the response layer to
+/// choose from by `Accept-Encoding`.
 fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
     let mut response = p.body.clone().into_response();
+    response.extensions_mut().insert(p.compressed.clone());
     let headers = response.headers_mut();
     headers.insert(header::CONTENT_TYPE, HeaderValue::from_static(content_type));
     if let Ok(tag) = HeaderValue::from_str(&p.etag) {
@@ -383,7 +386,7 @@ async fn outlook_on_demand(
 }
 
 /// The earliest season (by first day) among served labels.
-fn first_served_season<'a>(
+pub(crate) fn first_served_season<'a>(
     labels: impl Iterator<Item = &'a String>,
     entry: &GaugeEntry,
 ) -> Option<String> {
@@ -446,54 +449,22 @@ pub struct OutlooksQuery {
 pub async fn outlooks(
     State(state): State<Arc<AppState>>,
     query: Result<Query<OutlooksQuery>, QueryRejection>,
-) -> Result<Json<api::OutlookSet>, AppError> {
+) -> Result<Response, AppError> {
     let query = query_of(query)?;
     require_loaded(&state)?;
     // Without `?season=`, each gauge's default outlook (the earliest season its fit issued).
     let asked = match &query.season {
         Some(text) => {
             let (year, name) = query::parse_label_shape(text).map_err(AppError::BadRequest)?;
-            Some((format!("{year}-{name}"), name))
+            Some(SeasonAsked {
+                label: format!("{year}-{name}"),
+                name,
+            })
         }
         None => None,
     };
-    let mut set = api::OutlookSet {
-        season: asked.as_ref().map(|(label, _)| label.clone()),
-        outlooks: Vec::new(),
-        unavailable: Vec::new(),
-    };
-    for entry in state.catalog.list() {
-        let gauge = entry.meta.id.clone();
-        let outcome = entry
-            .model
-            .as_ref()
-            .map_err(ToString::to_string)
-            .and_then(|model| match &asked {
-                None => first_served_season(model.outlooks.keys(), &entry)
-                    .and_then(|label| model.outlooks.get(&label))
-                    .map(|p| p.value.clone())
-                    .ok_or_else(|| format!("gauge {gauge} serves no outlook")),
-                Some((label, name)) => {
-                    query::parse_season(label, &entry.meta.seasons)
-                        .map_err(|_| format!("gauge {gauge} does not define season {name}"))?;
-                    match model.outlooks.get(label) {
-                        Some(p) => Ok(p.value.clone()),
-                        None => match model.cached(label) {
-                            Some(Ok(p)) => Ok(p.value.clone()),
-                            Some(Err(why)) => Err(why.to_string()),
-                            None => Err(format!(
-                                "no outlook issued for {label}; GET /api/v1/gauges/{gauge}/outlook?season={label} computes it"
-                            )),
-                        },
-                    }
-                }
-            });
-        match outcome {
-            Ok(outlook) => set.outlooks.push(outlook),
-            Err(reason) => set.unavailable.push(api::Unavailable { gauge, reason }),
-        }
-    }
-    Ok(Json(set))
+    let set = outlook_set::prepared_set(&state, asked).await?;
+    Ok(prepared(&set, "application/json"))
 }
 
 /// Query of the issued-outlooks endpoint.
