@@ -79,7 +79,13 @@ pub async fn etag_and_cache(
     next: Next,
 ) -> Response {
     let is_read = matches!(*request.method(), Method::GET | Method::HEAD);
-    let conditional = request.headers().clone();
+    // Only the two headers read below are kept (no allocation when neither is sent).
+    let mut conditional = axum::http::HeaderMap::new();
+    for name in [header::IF_NONE_MATCH, header::ACCEPT_ENCODING] {
+        for value in request.headers().get_all(&name) {
+            conditional.append(name.clone(), value.clone());
+        }
+    }
     let response = next.run(request).await;
     if !is_read || response.status() != StatusCode::OK {
         return response;
