@@ -445,7 +445,8 @@ pub struct OutlooksQuery {
     )
 )]
 /// `GET /api/v1/outlooks[?season=LABEL]`: every gauge's outlook of one season, or without a
-/// season each gauge's default (next) outlook.
+/// season each gauge's default (next) outlook; kept serialized and compressed until any gauge
+/// changes ([`crate::outlook_set`]).
 pub async fn outlooks(
     State(state): State<Arc<AppState>>,
     query: Result<Query<OutlooksQuery>, QueryRejection>,
