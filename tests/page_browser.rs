@@ -930,7 +930,11 @@ fn planner_page_in_headless_chromium() {
     let Some(browser) = Browser::open("planner_page_in_headless_chromium", "profile") else {
         return;
     };
-    let (service, session) = (&browser.service, &browser.session);
+    let Browser {
+        session,
+        _driver,
+        service,
+    } = browser;
     session.window_size(1280, 2400);
     session.goto(&format!("http://{}/", service.addr));
 
@@ -1059,7 +1063,11 @@ fn season_calendar_in_headless_chromium() {
     else {
         return;
     };
-    let (service, session) = (&browser.service, &browser.session);
+    let Browser {
+        session,
+        _driver,
+        service,
+    } = browser;
     session.window_size(390, 844);
     session.goto(&format!("http://{}/#gauge=port-tamsin", service.addr));
     session.wait_for(&ready_for("port-tamsin"), WAIT);

@@ -3,32 +3,44 @@
 //! never see half an update, and a failed refit leaves the old entry serving.
 
 use std::collections::BTreeMap;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::sync::{Arc, Mutex, RwLock};
 
 use axum::body::Bytes;
 
 use crate::api;
+use crate::compress::Compressed;
+use crate::outlook_set::OutlookSets;
 use crate::pipeline::{GaugeResults, PipelineError};
 use crate::upload::GaugeMeta;
 
-/// A response body serialized once, with its strong ETag.
+/// A response body serialized and compressed once, with its strong ETag.
 #[derive(Debug, Clone)]
 pub struct SerializedBody<T> {
     /// The value.
     pub value: T,
     /// Its JSON bytes.
     pub body: Bytes,
-    /// Its ETag (quoted).
+    /// Its ETag (quoted); each compressed copy's tag derives from it
+    /// ([`crate::compress::Coding::etag`]).
     pub etag: String,
+    /// Its gzip and brotli copies.
+    pub compressed: Compressed,
 }
 
 impl<T: serde::Serialize> SerializedBody<T> {
-    /// Serializes `value` once.
+    /// Serializes `value` once and compresses it both ways (CPU work: call it off the async
+    /// runtime).
     pub fn new(value: T) -> Self {
         let body = Bytes::from(serde_json::to_vec(&value).expect("wire types always serialize"));
         let etag = crate::etag::etag_of(&body);
-        Self { value, body, etag }
+        let compressed = Compressed::of(&body);
+        Self {
+            value,
+            body,
+            etag,
+            compressed,
+        }
     }
 }
 
@@ -43,6 +55,8 @@ pub struct ServedModel {
     pub outlooks: BTreeMap<String, Arc<SerializedBody<api::Outlook>>>,
     /// Outlooks of other seasons computed on demand from this fit, by season label.
     on_demand: Mutex<BTreeMap<String, OnDemand>>,
+    /// How many on-demand outcomes have been kept (a change of the outlook sets that list them).
+    kept: AtomicU64,
 }
 
 /// An outlook computed on demand, or why it could not be (kept too, so a season that cannot
@@ -75,6 +89,7 @@ impl ServedModel {
             hindcast,
             outlooks,
             on_demand: Mutex::default(),
+            kept: AtomicU64::new(0),
         }
     }
 
@@ -92,7 +107,13 @@ impl ServedModel {
             cache.pop_first();
         }
         cache.insert(label.to_owned(), kept.clone());
+        self.kept.fetch_add(1, Ordering::AcqRel);
         kept
+    }
+
+    /// How many on-demand outcomes this fit has kept so far.
+    pub fn kept_count(&self) -> u64 {
+        self.kept.load(Ordering::Acquire)
     }
 
     fn cache(&self) -> std::sync::MutexGuard<'_, BTreeMap<String, OnDemand>> {
@@ -148,6 +169,21 @@ impl GaugeEntry {
 pub struct Catalog {
     entries: RwLock<BTreeMap<String, Arc<GaugeEntry>>>,
     loaded: AtomicBool,
+    /// Bumped on every change of the entries (a swap, a removal, the end of the load).
+    version: AtomicU64,
+    /// The all-gauges outlook sets, prepared once per change of the catalog.
+    pub sets: OutlookSets,
+}
+
+/// What an all-gauges outlook set was built from: the catalog's version and, for a set of
+/// one season (which lists on-demand outlooks), the count of on-demand outcomes kept by the
+/// serving fits. A set whose stamp differs from the catalog's current one is rebuilt.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub struct Stamp {
+    /// [`Catalog`]'s change count.
+    pub version: u64,
+    /// Sum of the serving fits' kept on-demand outcomes (0 when not counted).
+    pub on_demand: u64,
 }
 
 impl Catalog {
@@ -172,6 +208,9 @@ impl Catalog {
             return false;
         }
         map.insert(entry.meta.id.clone(), Arc::new(entry));
+        // Bumped under the write lock, after the change: a reader that sees the new version
+        // sees the new entry.
+        self.version.fetch_add(1, Ordering::AcqRel);
         true
     }
 
@@ -179,11 +218,30 @@ impl Catalog {
     pub fn remove(&self, id: &str) {
         let mut map = self.entries.write().unwrap_or_else(|p| p.into_inner());
         map.remove(id);
+        self.version.fetch_add(1, Ordering::AcqRel);
     }
 
     /// Marks the startup load as finished.
     pub fn mark_loaded(&self) {
         self.loaded.store(true, Ordering::Release);
+        self.version.fetch_add(1, Ordering::AcqRel);
+    }
+
+    /// The catalog's current stamp; `with_on_demand` adds the on-demand outcomes kept (for a
+    /// set of one season). Read before the entries a set is built from, so a change during
+    /// the build leaves the set stale (rebuilt next time), never wrongly current.
+    pub fn stamp(&self, with_on_demand: bool) -> Stamp {
+        let map = self.read();
+        let version = self.version.load(Ordering::Acquire);
+        let on_demand = if with_on_demand {
+            map.values()
+                .filter_map(|e| e.model.as_ref().ok())
+                .map(|m| m.kept_count())
+                .sum()
+        } else {
+            0
+        };
+        Stamp { version, on_demand }
     }
 
     /// Whether the startup load has finished.

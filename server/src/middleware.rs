@@ -1,5 +1,6 @@
-//! Layers around the routes: strong ETags with `304 Not Modified`, cache headers, problem
-//! bodies for every error (filling `instance`), and the bearer-token gate on writes.
+//! Layers around the routes: the content coding of prepared bodies, strong ETags with
+//! `304 Not Modified`, cache headers, problem bodies for every error (filling `instance`), and
+//! the bearer-token gate on writes.
 
 use std::sync::Arc;
 
@@ -10,6 +11,7 @@ use axum::middleware::Next;
 use axum::response::{IntoResponse, Response};
 
 use crate::api::Problem;
+use crate::compress::{self, Compressed};
 use crate::error::{AppError, problem_response};
 use crate::etag::{etag_of, if_none_match_hits};
 use crate::state::AppState;
@@ -67,20 +69,31 @@ fn limit_problem(status: StatusCode, slug: &str, detail: String) -> Response {
     })
 }
 
-/// On successful GETs: adds an ETag (hashing the body unless the handler set one) and
-/// `Cache-Control`, and answers `304` when `If-None-Match` matches.
+/// On successful GETs: sends a prepared body in the coding `Accept-Encoding` asks for (its
+/// copy made when the body was built, never compressed here), adds an ETag (hashing the body
+/// unless the handler set one) and `Cache-Control`, and answers `304` when `If-None-Match`
+/// matches.
 pub async fn etag_and_cache(
     State(state): State<Arc<AppState>>,
     request: Request,
     next: Next,
 ) -> Response {
     let is_read = matches!(*request.method(), Method::GET | Method::HEAD);
-    let conditional = request.headers().clone();
+    // Only the two headers read below are kept (no allocation when neither is sent).
+    let mut conditional = axum::http::HeaderMap::new();
+    for name in [header::IF_NONE_MATCH, header::ACCEPT_ENCODING] {
+        for value in request.headers().get_all(&name) {
+            conditional.append(name.clone(), value.clone());
+        }
+    }
     let response = next.run(request).await;
     if !is_read || response.status() != StatusCode::OK {
         return response;
     }
-    let (mut parts, body) = response.into_parts();
+    let (mut parts, mut body) = response.into_parts();
+    if let Some(copies) = parts.extensions.remove::<Compressed>() {
+        body = choose_coding(&mut parts, body, &copies, &conditional);
+    }
     let (etag, body) = match parts
         .headers
         .get(header::ETAG)
@@ -108,13 +121,48 @@ pub async fn etag_and_cache(
         let mut not_modified = Response::new(Body::empty());
         *not_modified.status_mut() = StatusCode::NOT_MODIFIED;
         for name in [header::ETAG, header::CACHE_CONTROL, header::VARY] {
-            if let Some(value) = parts.headers.get(&name) {
-                not_modified.headers_mut().insert(name, value.clone());
+            for value in parts.headers.get_all(&name) {
+                not_modified
+                    .headers_mut()
+                    .append(name.clone(), value.clone());
             }
         }
         return not_modified;
     }
     Response::from_parts(parts, body)
+}
+
+/// Puts the copy of the coding the request accepts in place of the plain body, with its
+/// `Content-Encoding` and its own strong ETag; every such response varies on
+/// `Accept-Encoding`, whichever coding it carries.
+fn choose_coding(
+    parts: &mut axum::http::response::Parts,
+    plain: Body,
+    copies: &Compressed,
+    request: &axum::http::HeaderMap,
+) -> Body {
+    parts
+        .headers
+        .append(header::VARY, HeaderValue::from_static("accept-encoding"));
+    let coding = compress::negotiate(request);
+    let (Some(bytes), Some(token)) = (copies.bytes(coding), coding.token()) else {
+        return plain;
+    };
+    let plain_tag = parts
+        .headers
+        .get(header::ETAG)
+        .and_then(|v| v.to_str().ok())
+        .map(|tag| coding.etag(tag));
+    match plain_tag.and_then(|tag| HeaderValue::from_str(&tag).ok()) {
+        Some(tag) => parts.headers.insert(header::ETAG, tag),
+        // Without the plain body's tag the copy's own bytes are hashed below.
+        None => parts.headers.remove(header::ETAG),
+    };
+    parts
+        .headers
+        .insert(header::CONTENT_ENCODING, HeaderValue::from_static(token));
+    parts.headers.remove(header::CONTENT_LENGTH);
+    Body::from(bytes.clone())
 }
 
 /// Makes every error response a problem (RFC 9457) and fills its `instance` with the

@@ -389,10 +389,13 @@ async fn calendar_errors_are_the_outlooks_problems() {
     for path in [
         "/api/v1/gauges/a/calendar?season=2026-XYZ",
         "/api/v1/gauges/a/calendar.ics?season=2026-XYZ",
-        "/api/v1/gauges/a/calendar?format=xml",
     ] {
         get(&app, path).await.assert_problem(400, "bad-request");
     }
+    // A format the calendar cannot give is refused by the shared negotiation, never JSON.
+    get(&app, "/api/v1/gauges/a/calendar?format=xml")
+        .await
+        .assert_problem(406, "not-acceptable");
     // A season the record cannot support, as the outlook endpoint says.
     for path in [
         "/api/v1/gauges/a/calendar?season=2031-DJF",

@@ -19,7 +19,6 @@ fn demo_gauge(id: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("../demo-data/gauges/{id}.toml"))
 }
 
-
 /// The exported table: header and rows as strings.
 fn table(gauge: &Path) -> (Vec<String>, Vec<Vec<String>>) {
     let bytes = tidetally(&["counts", "--gauge", gauge.to_str().unwrap(), "--predictors"]);

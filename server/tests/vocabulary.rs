@@ -67,7 +67,6 @@ fn check_csv_header(what: &str, text: &str) {
     }
 }
 
-
 #[test]
 fn every_command_speaks_the_shared_vocabulary() {
     let gauge = demo("gauges/port-tamsin.toml");

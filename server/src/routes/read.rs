@@ -17,6 +17,7 @@ use crate::api;
 use crate::catalog::{GaugeEntry, OnDemand, SerializedBody, ServedModel};
 use crate::error::AppError;
 use crate::negotiate::{Format, csv_response, negotiate, vary_accept};
+use crate::outlook_set::{self, SeasonAsked};
 use crate::pipeline;
 use crate::query;
 use crate::state::{self, AppState};
@@ -50,9 +51,11 @@ pub(crate) fn query_of<T>(query: Result<Query<T>, QueryRejection>) -> Result<T, 
         .map_err(|err| AppError::BadRequest(format!("bad query string: {}", err.body_text())))
 }
 
-/// A prepared JSON body with its ETag.
+/// A prepared JSON body with its ETag, and its compressed copies for the response layer to
+/// choose from by `Accept-Encoding`.
 pub(crate) fn prepared<T>(p: &SerializedBody<T>, content_type: &'static str) -> Response {
     let mut response = p.body.clone().into_response();
+    response.extensions_mut().insert(p.compressed.clone());
     let headers = response.headers_mut();
     headers.insert(header::CONTENT_TYPE, HeaderValue::from_static(content_type));
     if let Ok(tag) = HeaderValue::from_str(&p.etag) {
@@ -406,7 +409,7 @@ fn default_outlook(entry: &GaugeEntry) -> Result<&SerializedBody<api::Outlook>, 
 }
 
 /// The earliest season (by first day) among served labels.
-fn first_served_season<'a>(
+pub(crate) fn first_served_season<'a>(
     labels: impl Iterator<Item = &'a String>,
     entry: &GaugeEntry,
 ) -> Option<String> {
@@ -470,7 +473,8 @@ pub struct OutlooksQuery {
     )
 )]
 /// `GET /api/v1/outlooks[?season=LABEL]`: every gauge's outlook of one season, or without a
-/// season each gauge's default (next) outlook.
+/// season each gauge's default (next) outlook; kept serialized and compressed until any gauge
+/// changes ([`crate::outlook_set`]).
 pub async fn outlooks(
     State(state): State<Arc<AppState>>,
     headers: HeaderMap,
@@ -483,53 +487,20 @@ pub async fn outlooks(
     let asked = match &query.season {
         Some(text) => {
             let (year, name) = query::parse_label_shape(text).map_err(AppError::BadRequest)?;
-            Some((format!("{year}-{name}"), name))
+            Some(SeasonAsked {
+                label: format!("{year}-{name}"),
+                name,
+            })
         }
         None => None,
     };
-    let mut set = api::OutlookSet {
-        season: asked.as_ref().map(|(label, _)| label.clone()),
-        outlooks: Vec::new(),
-        unavailable: Vec::new(),
-    };
-    for entry in state.catalog.list() {
-        let gauge = entry.meta.id.clone();
-        let outcome = entry
-            .model
-            .as_ref()
-            .map_err(ToString::to_string)
-            .and_then(|model| match &asked {
-                None => default_outlook(&entry).map(|p| p.value.clone()),
-                Some((label, name)) => {
-                    query::parse_season(label, &entry.meta.seasons)
-                        .map_err(|_| format!("gauge {gauge} does not define season {name}"))?;
-                    match model.outlooks.get(label) {
-                        Some(p) => Ok(p.value.clone()),
-                        None => match model.cached(label) {
-                            Some(Ok(p)) => Ok(p.value.clone()),
-                            Some(Err(why)) => Err(why.to_string()),
-                            None => Err(format!(
-                                "no outlook issued for {label}; GET /api/v1/gauges/{gauge}/outlook?season={label} computes it"
-                            )),
-                        },
-                    }
-                }
-            });
-        match outcome {
-            Ok(outlook) => set.outlooks.push(outlook),
-            Err(reason) => set.unavailable.push(api::Unavailable { gauge, reason }),
-        }
+    let set = outlook_set::prepared_set(&state, asked).await?;
+    match format {
+        Format::Csv => Ok(csv_response(
+            tables::outlook_set_csv(&set.value).map_err(csv_failed)?,
+        )),
+        Format::Json => Ok(json_varying(&set)),
     }
-    let mut response = match format {
-        Format::Csv => {
-            return Ok(csv_response(
-                tables::outlook_set_csv(&set).map_err(csv_failed)?,
-            ));
-        }
-        Format::Json => Json(set).into_response(),
-    };
-    vary_accept(&mut response);
-    Ok(response)
 }
 
 /// Query of the issued-outlooks endpoint.
