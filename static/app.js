@@ -28,6 +28,8 @@
     (children || []).forEach((c) => node.append(c));
     return node;
   }
+  // Shared with static/calendar.js (loaded after this script).
+  window.tidetallyFormat = Object.freeze({ el, percent, oneDecimal });
   /** A number from the API, with its raw value kept for checking. */
   function figure(field, raw, text) {
     return el("strong", { "data-field": field, "data-raw": String(raw), text });

@@ -15,21 +15,8 @@
   let token = 0;
 
   const $ = (id) => document.getElementById(id);
-  function el(tag, attrs, children) {
-    const node = document.createElement(tag);
-    Object.entries(attrs || {}).forEach(([k, v]) => {
-      if (k === "text") node.textContent = v; else node.setAttribute(k, v);
-    });
-    (children || []).forEach((c) => node.append(c));
-    return node;
-  }
-  // The same wording as the rest of the page (static/app.js `percent`, `oneDecimal`).
-  function percent(p) {
-    if (p < 0.005) return "less than 1%";
-    if (p > 0.995) return "more than 99%";
-    return Math.round(p * 100) + "%";
-  }
-  function oneDecimal(x) { return (Math.round(x * 10) / 10).toFixed(1); }
+  // The page's own element builder and wording (static/app.js), so both say numbers alike.
+  const { el, percent, oneDecimal } = window.tidetallyFormat;
   function plural(n, one, many) { return `${n} ${n === 1 ? one : many}`; }
 
   /** "2026-12-07" -> a UTC date (no local time zone shifts). */

@@ -18,6 +18,7 @@ use tidetally_server::auth::Token;
 use tidetally_server::store::Store;
 use tidetally_server::{AppState, state};
 use tidetally_test_support::http::{HttpAnswer, request};
+use tidetally_test_support::table::csv_table;
 
 const TOKEN: &str = "e2e-token-0123456789abcdef";
 const DEMO_GAUGE: &str = "port-tamsin";
@@ -476,18 +477,7 @@ fn parse_csv(answer: &HttpAnswer) -> (Vec<String>, Vec<Vec<String>>) {
         answer.header("content-type").as_deref(),
         Some("text/csv; charset=utf-8")
     );
-    let mut reader = csv::Reader::from_reader(answer.body.as_slice());
-    let header = reader
-        .headers()
-        .unwrap()
-        .iter()
-        .map(str::to_owned)
-        .collect();
-    let rows = reader
-        .records()
-        .map(|r| r.unwrap().iter().map(str::to_owned).collect())
-        .collect();
-    (header, rows)
+    csv_table(&answer.body)
 }
 
 fn cell(header: &[String], row: &[String], name: &str) -> String {

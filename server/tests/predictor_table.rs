@@ -12,6 +12,7 @@ use std::process::Command;
 
 use serde_json::Value;
 use support::tidetally;
+use tidetally_test_support::table::csv_table;
 
 const TOLERANCE: f64 = 1e-8;
 
@@ -22,18 +23,7 @@ fn demo_gauge(id: &str) -> PathBuf {
 /// The exported table: header and rows as strings.
 fn table(gauge: &Path) -> (Vec<String>, Vec<Vec<String>>) {
     let bytes = tidetally(&["counts", "--gauge", gauge.to_str().unwrap(), "--predictors"]);
-    let mut reader = csv::Reader::from_reader(bytes.as_slice());
-    let header = reader
-        .headers()
-        .unwrap()
-        .iter()
-        .map(str::to_owned)
-        .collect();
-    let rows = reader
-        .records()
-        .map(|r| r.unwrap().iter().map(str::to_owned).collect())
-        .collect();
-    (header, rows)
+    csv_table(&bytes)
 }
 
 fn column(header: &[String], name: &str) -> usize {
