@@ -191,7 +191,7 @@
     if (g) {
       $("gauge-facts").textContent = `Minor flood threshold ${g.flood_threshold_m.toFixed(2)} m above ${g.datum}. ` +
         (g.record ? `Water levels from ${localDay(g.record.first, g.utc_offset)} to ${localDay(g.record.last, g.utc_offset)} ` +
-          "(the gauge's local days)." : "No water levels stored yet.");
+          "(local dates)." : "No water levels stored yet.");
     }
   }
 
@@ -422,7 +422,7 @@
     { term: "tide", pattern: /\b(?:astronomical )?tides?\b/i,
       text: "the rise and fall of the sea set by the Moon and Sun, known years ahead" },
     { term: "datum", pattern: /\bdatum\b/i,
-      text: "the gauge's datum: its zero, the level its readings and flood threshold are measured from" },
+      text: "the gauge's zero, from which its levels are measured" },
   ];
   const GLOSS_SKIP = "script, style, option, select, svg, canvas, button, h1, h2, h3, summary, .gloss";
 
@@ -452,6 +452,16 @@
     const walker = document.createTreeWalker(document.body, NodeFilter.SHOW_TEXT);
     const nodes = [];
     for (let n = walker.nextNode(); n; n = walker.nextNode()) nodes.push(n);
+    // In reading order as laid out: on a phone the CSS moves the chooser and the answer
+    // above the cautions, so the first use a reader sees is not the first in the document.
+    const rank = new Map();
+    const rankOf = (n) => {
+      const block = n.parentElement && n.parentElement.closest("#main > *");
+      if (!block) return n.parentElement && n.parentElement.closest("footer") ? Infinity : -Infinity;
+      if (!rank.has(block)) rank.set(block, Number(getComputedStyle(block).order) || 0);
+      return rank.get(block);
+    };
+    nodes.sort((a, b) => rankOf(a) - rankOf(b) || 0);
     for (const node of nodes) {
       if (!pending.length) break;
       if (!node.nodeValue.trim() || !visibleText(node)) continue;
@@ -761,6 +771,10 @@
           const width = Math.max(200, Math.floor(box.clientWidth));
           u.setSize({ width, height: Math.round(Math.min(320, Math.max(220, width * 0.58))) });
         });
+        // The reading order changes with the layout (phones put the answer first), and the
+        // chooser's facts were just rewritten: the explanations go to the first use a reader
+        // now sees.
+        if (state.outlook) explainFirstUses();
       }, 150);
     });
   }

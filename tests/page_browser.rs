@@ -250,13 +250,23 @@ fn plan_on_text(days: f64) -> String {
     }
 }
 
-/// The page's visible text, in page order, as the reader sees it (closed disclosures,
-/// hidden elements and the explanations of terms left out), and where each explanation
-/// (`.gloss[data-gloss]`) sits in it.
+/// The page's visible text, in reading order as laid out (the blocks of `main` by their
+/// CSS `order`, which on a phone puts the answer above the cautions), as the reader sees it
+/// (closed disclosures, hidden elements and the explanations of terms left out), and where
+/// each explanation (`.gloss[data-gloss]`) sits in it.
 const VISIBLE_TEXT: &str = "
   const parts = []; const glossAt = {}; let length = 0;
   const walker = document.createTreeWalker(document.body, NodeFilter.SHOW_TEXT);
-  for (let n = walker.nextNode(); n; n = walker.nextNode()) {
+  const nodes = [];
+  for (let n = walker.nextNode(); n; n = walker.nextNode()) nodes.push(n);
+  const blockRank = (n) => {
+    const block = n.parentElement && n.parentElement.closest('main > *');
+    if (!block) return n.parentElement && n.parentElement.closest('footer') ? Infinity : -Infinity;
+    return Number(getComputedStyle(block).order) || 0;
+  };
+  const ranked = nodes.map((n, i) => [blockRank(n), i, n]);
+  ranked.sort((a, b) => (a[0] - b[0]) || (a[1] - b[1]));
+  for (const [, , n] of ranked) {
     const parent = n.parentElement;
     if (!parent || parent.closest('script, style') || !parent.checkVisibility()) continue;
     const gloss = parent.closest('.gloss');
@@ -1013,10 +1023,13 @@ fn planner_page_in_headless_chromium() {
     check_console(&session);
 
     // Phones first, then a desktop width: the same checks at both.
+    // The explanations follow the reading order when the layout changes with the width.
     check_layout(&session, 390, 844, "phone");
     check_charts(&session);
+    check_glossary(&session, service.addr);
     check_layout(&session, 1300, 900, "desktop");
     check_charts(&session);
+    check_glossary(&session, service.addr);
 
     let dir = artifacts();
     // Printing: the print style sheet hides the controls and keeps the outlook and cautions.
