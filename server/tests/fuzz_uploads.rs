@@ -163,7 +163,7 @@ proptest! {
         latitude in near_valid_number(),
     ) {
         let text = format!(
-            "id = \"{id}\"\nname = \"x\"\nlatitude = {latitude}\nlongitude = 0.0\ndatum = \"VBZ\"\n\
+            "id = \"{id}\"\nname = \"x\"\nlatitude = {latitude}\nlongitude = -150.0\ndatum = \"VBZ\"\n\
              flood_threshold_m = {threshold}\nutc_offset = \"+00:00\"\n[levels]\nfile = \"x.csv\"\n"
         );
         if let Err(err) = parse_gauge_toml(&text) {
