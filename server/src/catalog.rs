@@ -162,6 +162,25 @@ impl GaugeEntry {
             model_status: self.model.as_ref().err().map(ToString::to_string),
         }
     }
+
+    /// The default (next) season of `model`: the earliest, by first day, of the seasons its
+    /// fit issued; the one `GET /api/v1/gauges/{id}/outlook` serves without `?season=`.
+    pub fn default_season(&self, model: &ServedModel) -> Option<String> {
+        model
+            .outlooks
+            .keys()
+            .filter_map(|l| crate::query::parse_season(l, &self.meta.seasons).ok())
+            .min_by_key(|s| s.first_day())
+            .map(|s| s.label())
+    }
+
+    /// The gauge's default (next) outlook, or why it has none.
+    pub fn default_outlook(&self) -> Result<&SerializedBody<api::Outlook>, String> {
+        let model = self.model.as_ref().map_err(ToString::to_string)?;
+        self.default_season(model)
+            .and_then(|label| model.outlooks.get(&label).map(|served| &**served))
+            .ok_or_else(|| format!("gauge {} serves no outlook", self.meta.id))
+    }
 }
 
 /// All gauges being served.

@@ -111,6 +111,11 @@ pub fn csv_response(body: Vec<u8>) -> Response {
     response
 }
 
+/// A CSV body that could not be written (an internal error: the tables are the service's own).
+pub fn csv_failed(err: csv::Error) -> AppError {
+    AppError::Internal(format!("CSV body: {err}"))
+}
+
 /// Adds `Vary: Accept` (appended, keeping any other `Vary` a later layer adds).
 pub fn vary_accept(response: &mut Response) {
     response

@@ -123,16 +123,10 @@ pub fn assemble(catalog: &Catalog, season: Option<&SeasonAsked>) -> api::Outlook
     };
     for entry in catalog.list() {
         let gauge = entry.meta.id.clone();
-        let outcome = entry
-            .model
-            .as_ref()
-            .map_err(ToString::to_string)
-            .and_then(|model| match season {
-                None => crate::routes::read::first_served_season(model.outlooks.keys(), &entry)
-                    .and_then(|label| model.outlooks.get(&label))
-                    .map(|p| p.value.clone())
-                    .ok_or_else(|| format!("gauge {gauge} serves no outlook")),
-                Some(SeasonAsked { label, name }) => {
+        let outcome = match season {
+            None => entry.default_outlook().map(|p| p.value.clone()),
+            Some(SeasonAsked { label, name }) => {
+                entry.model.as_ref().map_err(ToString::to_string).and_then(|model| {
                     query::parse_season(label, &entry.meta.seasons)
                         .map_err(|_| format!("gauge {gauge} does not define season {name}"))?;
                     match model.outlooks.get(label) {
@@ -145,8 +139,9 @@ pub fn assemble(catalog: &Catalog, season: Option<&SeasonAsked>) -> api::Outlook
                             )),
                         },
                     }
-                }
-            });
+                })
+            }
+        };
         match outcome {
             Ok(outlook) => set.outlooks.push(outlook),
             Err(reason) => set.unavailable.push(api::Unavailable { gauge, reason }),

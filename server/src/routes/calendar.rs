@@ -16,7 +16,7 @@ use super::read::{JSON_OR_CSV, gauge_entry, query_of, served_outlook};
 use crate::api;
 use crate::calendar::{self, CalendarError, ics};
 use crate::error::AppError;
-use crate::negotiate::{Format, negotiate, vary_accept};
+use crate::negotiate::{Format, csv_failed, csv_response, negotiate, vary_accept};
 use crate::pipeline::PipelineError;
 use crate::state::AppState;
 
@@ -49,14 +49,23 @@ async fn season_calendar(
     Ok(calendar::season_calendar(&outlook.value, &entry.meta)?)
 }
 
-/// `attachment; filename="..."` for a downloaded file (gauge ids and season labels are
-/// ASCII letters, digits and `-`).
-fn attachment(calendar: &api::SeasonCalendar, extension: &str) -> Option<HeaderValue> {
-    HeaderValue::from_str(&format!(
+/// `response` with `Content-Disposition: attachment; filename="..."` for a downloaded file
+/// (gauge ids and season labels are ASCII letters, digits and `-`).
+fn with_attachment(
+    mut response: Response,
+    calendar: &api::SeasonCalendar,
+    extension: &str,
+) -> Response {
+    let name = format!(
         "attachment; filename=\"tidetally-calendar-{}-{}.{extension}\"",
         calendar.gauge, calendar.season
-    ))
-    .ok()
+    );
+    if let Ok(value) = HeaderValue::from_str(&name) {
+        response
+            .headers_mut()
+            .insert(header::CONTENT_DISPOSITION, value);
+    }
+    response
 }
 
 #[utoipa::path(
@@ -85,22 +94,17 @@ pub async fn calendar(
     let query = query_of(query)?;
     let format = negotiate(query.format.as_deref(), &headers, JSON_OR_CSV)?;
     let calendar = season_calendar(&state, &id, query.season.as_deref()).await?;
-    let mut response = if format == Format::Csv {
-        let body =
-            calendar::calendar_csv(&calendar).map_err(|e| AppError::Internal(e.to_string()))?;
-        let mut response =
-            ([(header::CONTENT_TYPE, "text/csv; charset=utf-8")], body).into_response();
-        if let Some(value) = attachment(&calendar, "csv") {
-            response
-                .headers_mut()
-                .insert(header::CONTENT_DISPOSITION, value);
+    Ok(match format {
+        Format::Csv => {
+            let body = calendar::calendar_csv(&calendar).map_err(csv_failed)?;
+            with_attachment(csv_response(body), &calendar, "csv")
         }
-        response
-    } else {
-        Json(calendar).into_response()
-    };
-    vary_accept(&mut response);
-    Ok(response)
+        Format::Json => {
+            let mut response = Json(calendar).into_response();
+            vary_accept(&mut response);
+            response
+        }
+    })
 }
 
 /// Query of the iCalendar endpoint.
@@ -134,11 +138,6 @@ pub async fn calendar_ics(
     let query = query_of(query)?;
     let calendar = season_calendar(&state, &id, query.season.as_deref()).await?;
     let body = ics::season_ics(&calendar)?;
-    let mut response = ([(header::CONTENT_TYPE, ics::CONTENT_TYPE)], body).into_response();
-    if let Some(value) = attachment(&calendar, "ics") {
-        response
-            .headers_mut()
-            .insert(header::CONTENT_DISPOSITION, value);
-    }
-    Ok(response)
+    let response = ([(header::CONTENT_TYPE, ics::CONTENT_TYPE)], body).into_response();
+    Ok(with_attachment(response, &calendar, "ics"))
 }

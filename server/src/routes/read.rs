@@ -16,7 +16,7 @@ use super::tables;
 use crate::api;
 use crate::catalog::{GaugeEntry, OnDemand, SerializedBody, ServedModel};
 use crate::error::AppError;
-use crate::negotiate::{Format, csv_response, negotiate, vary_accept};
+use crate::negotiate::{Format, csv_failed, csv_response, negotiate, vary_accept};
 use crate::outlook_set::{self, SeasonAsked};
 use crate::pipeline;
 use crate::query;
@@ -144,7 +144,8 @@ pub async fn gauges_geojson(State(state): State<Arc<AppState>>) -> Result<Respon
         .list()
         .iter()
         .map(|entry| {
-            let summary = default_outlook(entry)
+            let summary = entry
+                .default_outlook()
                 .ok()
                 .map(|served| api::OutlookSummary::of(&served.value));
             api::Feature::of(&entry.to_wire(), summary)
@@ -231,10 +232,6 @@ fn json_varying<T>(p: &SerializedBody<T>) -> Response {
     response
 }
 
-fn csv_failed(err: csv::Error) -> AppError {
-    AppError::Internal(format!("CSV body: {err}"))
-}
-
 /// Query of the outlook endpoint.
 #[derive(Debug, Deserialize)]
 pub struct OutlookQuery {
@@ -314,7 +311,8 @@ pub(crate) async fn served_outlook(
             (target.label(), Some(target))
         }
         None => (
-            first_served_season(model.outlooks.keys(), &entry)
+            entry
+                .default_season(model)
                 .ok_or_else(|| AppError::NotFound(format!("gauge {id:?} serves no outlook")))?,
             None,
         ),
@@ -397,26 +395,6 @@ async fn outlook_on_demand(
         Ok(model.keep(&label, outcome))
     })
     .await?
-}
-
-/// The gauge's default (next) outlook: that of the earliest season its fit issued, the one
-/// `GET /api/v1/gauges/{id}/outlook` serves without `?season=`; or why it has none.
-fn default_outlook(entry: &GaugeEntry) -> Result<&SerializedBody<api::Outlook>, String> {
-    let model = entry.model.as_ref().map_err(ToString::to_string)?;
-    first_served_season(model.outlooks.keys(), entry)
-        .and_then(|label| model.outlooks.get(&label).map(|served| &**served))
-        .ok_or_else(|| format!("gauge {} serves no outlook", entry.meta.id))
-}
-
-/// The earliest season (by first day) among served labels.
-pub(crate) fn first_served_season<'a>(
-    labels: impl Iterator<Item = &'a String>,
-    entry: &GaugeEntry,
-) -> Option<String> {
-    labels
-        .filter_map(|l| query::parse_season(l, &entry.meta.seasons).ok())
-        .min_by_key(|s| s.first_day())
-        .map(|s| s.label())
 }
 
 #[utoipa::path(
